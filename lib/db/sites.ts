@@ -1,0 +1,28 @@
+import { can, sitesWhere, type TAction, type TActor } from "@/lib/auth/permissions";
+import { AppError } from "@/lib/errors";
+import { db } from "./client";
+import { pickTotals } from "./totals";
+
+/**
+ * Loads a site for an action, or refuses: a site of another organisation (or none) is "not found", so its
+ * existence is never confirmed; a site of the same organisation without the right role is "forbidden".
+ */
+export async function siteFor(actor: TActor, siteId: string, action: TAction) {
+  const site = await db().site.findUnique({ where: { id: siteId } });
+  if (!site || site.organisationId !== actor.organisationId) throw new AppError("not_found", "No such site.");
+  if (!can(actor, action, siteId)) throw new AppError("forbidden", "Your role at this site does not allow that.");
+  return site;
+}
+
+/** The sites an actor may see for an action, in name order: the scope of lists and roll-ups. */
+export async function visibleSites(actor: TActor, action: TAction = "units.read") {
+  return db().site.findMany({
+    where: { id: { in: sitesWhere(actor, action) }, organisationId: actor.organisationId },
+    orderBy: { name: "asc" },
+  });
+}
+
+export async function siteTotals(actor: TActor, siteId: string) {
+  const site = await siteFor(actor, siteId, "units.read");
+  return { site: { id: site.id, name: site.name, unitSystem: site.unitSystem }, totals: pickTotals(site) };
+}

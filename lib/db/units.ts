@@ -1,0 +1,161 @@
+import { randomUUID } from "node:crypto";
+import { estimateComposition } from "@/lib/chemistry";
+import { sitesWhere, type TActor } from "@/lib/auth/permissions";
+import { AppError } from "@/lib/errors";
+import { needsClosedContainer, type TUnitIntake } from "@/lib/intake/schema";
+import { db, type TTx } from "./client";
+import { siteFor } from "./sites";
+import { changeSiteLevel, incrementBy, type TTotals } from "./totals";
+import { writeTrail } from "./trail";
+
+export type TIntakeResult = { status: number; body: unknown; isReplay: boolean };
+
+const INTAKE_SCOPE = "POST /api/v1/units";
+
+/** The composition stored with a unit, flattened to columns. */
+function compositionColumns(input: TUnitIntake) {
+  const c = estimateComposition({
+    kind: input.kind,
+    nominalVoltage: input.nominalVoltage,
+    capacityAh: input.capacityAh,
+    cca: input.cca,
+    groupSize: input.groupSize,
+    weightKg: input.weightKg,
+    specificGravity: input.specificGravity,
+  });
+  return {
+    composition: c,
+    columns: {
+      method: c.method,
+      batteryKg: c.batteryKg.value,
+      batteryKgLow: c.batteryKg.low,
+      batteryKgHigh: c.batteryKg.high,
+      leadKg: c.leadKg.value,
+      leadKgLow: c.leadKg.low,
+      leadKgHigh: c.leadKg.high,
+      electrolyteKg: c.electrolyteKg.value,
+      electrolyteKgLow: c.electrolyteKg.low,
+      electrolyteKgHigh: c.electrolyteKg.high,
+      acidKg: c.sulfuricAcidKg.value,
+      acidKgLow: c.sulfuricAcidKg.low,
+      acidKgHigh: c.sulfuricAcidKg.high,
+      polymerKg: c.polymerKg.value,
+      otherKg: c.otherKg.value,
+    },
+  };
+}
+
+async function replay(scope: string, key: string): Promise<TIntakeResult | null> {
+  const row = await db().idempotencyKey.findUnique({ where: { scope_key: { scope, key } } });
+  return row ? { status: row.status, body: JSON.parse(row.body), isReplay: true } : null;
+}
+
+/**
+ * Logs one unit: stores it with its composition, moves the site's (and container's) totals by exactly that
+ * unit, writes the trail event and the idempotency record — all in one transaction.
+ */
+export async function recordIntake(
+  actor: TActor,
+  input: TUnitIntake,
+  idempotencyKey?: string,
+  { at }: { at?: Date } = {},
+): Promise<TIntakeResult> {
+  const site = await siteFor(actor, input.site, "units.create");
+  const scope = `${actor.ref} ${INTAKE_SCOPE}`;
+  if (idempotencyKey) {
+    const earlier = await replay(scope, idempotencyKey);
+    if (earlier) return earlier;
+  }
+  const { composition, columns } = compositionColumns(input);
+  const id = randomUUID();
+  // `at` lets the demo loader and imports backdate an intake; the API always uses the current time.
+  const now = at ?? new Date();
+  const delta: TTotals = {
+    unitCount: 1,
+    batteryKg: columns.batteryKg,
+    leadKg: columns.leadKg,
+    electrolyteKg: columns.electrolyteKg,
+    acidKg: columns.acidKg,
+  };
+  try {
+    return await db().$transaction(async (tx) => {
+      const container = input.containerId ? await stowTarget(tx, site.id, input.containerId, input.condition) : null;
+      const unit = await tx.unit.create({
+        data: {
+          id,
+          siteId: site.id,
+          containerId: container?.id ?? null,
+          kind: input.kind,
+          nominalVoltage: input.nominalVoltage,
+          capacityAh: input.capacityAh ?? null,
+          cca: input.cca ?? null,
+          groupSize: input.groupSize ?? null,
+          weightKg: input.weightKg ?? null,
+          condition: input.condition,
+          source: input.source,
+          state: container ? "stowed" : "received",
+          saleRef: input.saleRef ?? null,
+          note: input.note ?? null,
+          receivedAt: now,
+          receivedBy: actor.ref,
+          ...columns,
+        },
+      });
+      if (container) {
+        await tx.container.update({
+          where: { id: container.id },
+          data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now },
+        });
+        if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
+      }
+      const totals = await changeSiteLevel(tx, { siteId: site.id, delta, reason: "intake", refId: id, at: now });
+      const body = {
+        unit: { ...unit, notes: composition.notes, warnings: composition.warnings },
+        composition,
+        siteTotals: totals,
+      };
+      await writeTrail(tx, actor, { siteId: site.id, action: "unit.received", entity: "unit", entityId: id, after: unit, at: now });
+      if (idempotencyKey) {
+        await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) } });
+      }
+      return { status: 201, body, isReplay: false };
+    });
+  } catch (error) {
+    // Two requests with the same key at once: the loser answers with the winner's response.
+    if (idempotencyKey && (error as { code?: string }).code === "P2002") {
+      const earlier = await replay(scope, idempotencyKey);
+      if (earlier) return earlier;
+    }
+    throw error;
+  }
+}
+
+async function stowTarget(tx: TTx, siteId: string, containerId: string, condition: string) {
+  const container = await tx.container.findUnique({ where: { id: containerId } });
+  if (!container || container.siteId !== siteId) {
+    throw new AppError("invalid_input", "That container is not at this site.", [{ field: "containerId", message: "choose a container at this site" }]);
+  }
+  if (container.state !== "open") {
+    throw new AppError("invalid_input", "That container is not open.", [{ field: "containerId", message: `container ${container.labelNumber} is ${container.state}; choose an open one` }]);
+  }
+  if (needsClosedContainer(condition) && !container.isClosed) {
+    throw new AppError("invalid_input", "Leaking or cracked units go only into a closed, compatible container.", [
+      { field: "containerId", message: `container ${container.labelNumber} is not a closed container` },
+    ]);
+  }
+  return container;
+}
+
+export async function listUnits(actor: TActor, { siteId, from, to, limit = 50 }: { siteId?: string; from?: Date; to?: Date; limit?: number }) {
+  if (siteId) await siteFor(actor, siteId, "units.read");
+  const scope = sitesWhere(actor, "units.read");
+  return db().unit.findMany({
+    where: {
+      siteId: siteId ? siteId : { in: scope },
+      site: { organisationId: actor.organisationId },
+      receivedAt: { gte: from, lte: to },
+    },
+    orderBy: { receivedAt: "desc" },
+    take: Math.min(limit, 500),
+  });
+}

@@ -1,0 +1,165 @@
+/**
+ * `npm run bench:intake`: intake throughput and latency of the built app against two floors measured in the
+ * same run — the raw storage work alone (better-sqlite3 or pg) and a bare route handler of the same build
+ * doing only that raw work. Also the totals endpoint, whose latency must not grow with the history.
+ * DATABASE_URL=postgresql://… runs it on PostgreSQL (the database is reset).
+ */
+import { spawn } from "node:child_process";
+import { mkdtempSync, rmSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { randomUUID } from "node:crypto";
+import autocannon from "autocannon";
+import Database from "better-sqlite3";
+import pg from "pg";
+import { buildIfNeeded } from "../../scripts/build-if-needed";
+import { databaseProvider, pgConfig, sqliteFilePath } from "../../lib/db/migrate/database-url";
+import { applyMigrations, resetDatabase } from "../../lib/db/migrate/migrations";
+import { RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "../../lib/bench/raw-intake";
+import { newApiKey } from "../../lib/auth/api-keys";
+
+const root = path.resolve(import.meta.dirname, "../..");
+const HISTORY = Number(process.env.BENCH_HISTORY ?? 100_000);
+const DURATION_S = Number(process.env.BENCH_SECONDS ?? 10);
+const CONNECTIONS = 10;
+const PORT = Number(process.env.BENCH_PORT ?? 3210);
+
+const tmp = mkdtempSync(path.join(os.tmpdir(), "leadger-bench-"));
+const url = process.env.DATABASE_URL?.startsWith("postgres") ? process.env.DATABASE_URL : `file:${path.join(tmp, "bench.db")}`;
+const provider = databaseProvider(url);
+
+type TSql = { run: (sql: string, args: unknown[]) => Promise<void>; tx: (fn: () => Promise<void>) => Promise<void>; close: () => Promise<void> };
+
+async function openSql(): Promise<TSql> {
+  if (provider === "postgresql") {
+    const client = new pg.Client(pgConfig(url));
+    await client.connect();
+    return {
+      run: async (sql, args) => void (await client.query(toPg(sql), args)),
+      tx: async (fn) => {
+        await client.query("BEGIN");
+        await fn();
+        await client.query("COMMIT");
+      },
+      close: async () => void (await client.end()),
+    };
+  }
+  const db = new Database(sqliteFilePath(url));
+  db.pragma("journal_mode = WAL");
+  db.pragma("synchronous = NORMAL");
+  return {
+    run: async (sql, args) => void db.prepare(sql).run(...args),
+    tx: async (fn) => {
+      db.exec("BEGIN");
+      await fn();
+      db.exec("COMMIT");
+    },
+    close: async () => void db.close(),
+  };
+}
+
+async function seed() {
+  if (provider === "postgresql") await resetDatabase({ provider, url });
+  else await applyMigrations({ provider, url });
+  const sql = await openSql();
+  const orgId = randomUUID();
+  const siteId = randomUUID();
+  const floorSiteId = randomUUID();
+  const { key, prefix, hash } = newApiKey();
+  await sql.run(`INSERT INTO "Organisation" ("id","name","createdAt") VALUES (?,?,?)`, [orgId, "Bench org", new Date().toISOString()]);
+  for (const id of [siteId, floorSiteId]) {
+    await sql.run(`INSERT INTO "Site" ("id","organisationId","name","kind","createdAt") VALUES (?,?,?,?,?)`, [id, orgId, `Bench site ${id.slice(0, 4)}`, "store", new Date().toISOString()]);
+  }
+  await sql.run(`INSERT INTO "ApiKey" ("id","organisationId","siteId","role","name","prefix","hash","createdBy","createdAt") VALUES (?,?,?,?,?,?,?,?,?)`, [
+    randomUUID(), orgId, siteId, "clerk", "bench", prefix, hash, "bench", new Date().toISOString(),
+  ]);
+  const started = Date.now();
+  const start = Date.now() - 365 * 86_400_000;
+  for (let batch = 0; batch < HISTORY; batch += 5000) {
+    await sql.tx(async () => {
+      for (let i = batch; i < Math.min(HISTORY, batch + 5000); i++) {
+        await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, new Date(start + (i * 365 * 86_400_000) / HISTORY)));
+        await sql.run(RAW_TOTALS_UPDATE, [siteId]);
+      }
+    });
+  }
+  console.log(`seeded ${HISTORY.toLocaleString("en-US")} units in ${((Date.now() - started) / 1000).toFixed(1)} s (${provider})`);
+  await sql.close();
+  return { siteId, floorSiteId, key };
+}
+
+/** The storage floor: the same insert and total update, in this process, one transaction each. */
+async function storageFloor(siteId: string) {
+  const sql = await openSql();
+  const latencies: number[] = [];
+  const until = performance.now() + Math.min(DURATION_S, 5) * 1000;
+  while (performance.now() < until) {
+    const t0 = performance.now();
+    await sql.tx(async () => {
+      await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId));
+      await sql.run(RAW_TOTALS_UPDATE, [siteId]);
+    });
+    latencies.push(performance.now() - t0);
+  }
+  await sql.close();
+  latencies.sort((a, b) => a - b);
+  const seconds = Math.min(DURATION_S, 5);
+  return { rps: latencies.length / seconds, p50: latencies[Math.floor(latencies.length * 0.5)]!, p99: latencies[Math.floor(latencies.length * 0.99)]! };
+}
+
+function startServer() {
+  const child = spawn(process.execPath, ["--import", "tsx", "scripts/serve.ts"], {
+    cwd: root,
+    env: { ...process.env, DATABASE_URL: url, PORT: String(PORT), LEADGER_BENCH_FLOOR: "1", LEADGER_DATA_DIR: tmp, NODE_ENV: "production" },
+    stdio: ["ignore", "pipe", "inherit"],
+  });
+  return new Promise<typeof child>((resolve, reject) => {
+    child.stdout.on("data", (chunk: Buffer) => {
+      if (chunk.toString().includes("listening")) resolve(child);
+    });
+    child.on("exit", (code) => reject(new Error(`server exited with ${code}`)));
+  });
+}
+
+async function cannon(opts: autocannon.Options) {
+  const result = await autocannon({ connections: CONNECTIONS, duration: DURATION_S, ...opts });
+  const errors = result.errors + result.timeouts + result.non2xx;
+  return { rps: result.requests.average, p50: result.latency.p50, p99: result.latency.p99, total: result.requests.total, errors };
+}
+
+const base = `http://127.0.0.1:${PORT}`;
+const { siteId, floorSiteId, key } = await seed();
+buildIfNeeded();
+const server = await startServer();
+try {
+  const body = JSON.stringify({ site: siteId, kind: "flooded", nominalVoltage: 12, capacityAh: 60, weightKg: 18, condition: "intact", source: "core-return" });
+  // Warm up both routes so compilation and first connections do not count.
+  await autocannon({ url: `${base}/api/v1/bench-floor?site=${floorSiteId}`, method: "POST", amount: 200, connections: 2 });
+  await autocannon({ url: `${base}/api/v1/units`, method: "POST", amount: 200, connections: 2, headers: { authorization: `Bearer ${key}`, "content-type": "application/json" }, body });
+
+  const storage = await storageFloor(floorSiteId);
+  const bare = await cannon({ url: `${base}/api/v1/bench-floor?site=${floorSiteId}`, method: "POST" });
+  const intake = await cannon({
+    url: `${base}/api/v1/units`,
+    method: "POST",
+    headers: { authorization: `Bearer ${key}`, "content-type": "application/json" },
+    requests: [{ setupRequest: (req) => ({ ...req, body, headers: { ...req.headers, "idempotency-key": randomUUID() } }) }],
+  });
+  const totals = await cannon({ url: `${base}/api/v1/sites/${siteId}/totals`, headers: { authorization: `Bearer ${key}` } });
+
+  const row = (name: string, r: { rps: number; p50: number; p99: number; errors?: number }) =>
+    `${name.padEnd(34)} ${r.rps.toFixed(0).padStart(7)} req/s   p50 ${r.p50.toFixed(1).padStart(6)} ms   p99 ${r.p99.toFixed(1).padStart(6)} ms${r.errors ? `   errors ${r.errors}` : ""}`;
+  const ratio = intake.rps / bare.rps;
+  console.log(`\nbench:intake on ${provider}, ${HISTORY.toLocaleString("en-US")} units of history, ${CONNECTIONS} connections × ${DURATION_S} s, ${os.cpus().length} cores`);
+  console.log(row("storage floor (raw, in-process)", storage));
+  console.log(row("framework floor (bare route)", bare));
+  console.log(row("POST /api/v1/units", intake));
+  console.log(row("GET /api/v1/sites/:id/totals", totals));
+  console.log(`\nintake / bare route = ${(ratio * 100).toFixed(0)} % (target ≥ 60 %): ${ratio >= 0.6 ? "met" : "NOT met"}`);
+  console.log(`intake p99 = ${intake.p99.toFixed(1)} ms (target ≤ 50 ms): ${intake.p99 <= 50 ? "met" : "NOT met"}`);
+  console.log(`totals p99 = ${totals.p99.toFixed(1)} ms (target ≤ 10 ms): ${totals.p99 <= 10 ? "met" : "NOT met"}`);
+  if (intake.errors || bare.errors || totals.errors) console.log(`errors: intake ${intake.errors}, bare ${bare.errors}, totals ${totals.errors}`);
+} finally {
+  server.kill("SIGTERM");
+  rmSync(tmp, { recursive: true, force: true });
+}
