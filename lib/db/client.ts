@@ -1,0 +1,67 @@
+// The Prisma client factory. No "server-only" here: scripts and tests (tsx, vitest) import this file,
+// and "server-only" throws outside a React server bundle. App code gets its client through db().
+import { mkdirSync } from "node:fs";
+import path from "node:path";
+import { PrismaBetterSqlite3 } from "@prisma/adapter-better-sqlite3";
+import { PrismaPg } from "@prisma/adapter-pg";
+import type { SqlDriverAdapterFactory } from "@prisma/driver-adapter-utils";
+import { PrismaClient as PostgresPrismaClient } from "./generated/postgres/client";
+import { type Prisma, PrismaClient as SqlitePrismaClient } from "./generated/sqlite/client";
+import { databaseProvider, DEFAULT_DATABASE_URL, pgConfig, sqliteFilePath } from "./migrate/database-url";
+
+export { databaseProvider, type TDatabaseProvider } from "./migrate/database-url";
+
+/**
+ * The client type the code is written against: the SQLite client's. Both generated clients share
+ * the model API; PostgreSQL-only extras (such as `mode: "insensitive"`) are deliberately not typed,
+ * so code that type-checks runs on both.
+ */
+export type TDb = SqlitePrismaClient;
+
+/** The client inside `db().$transaction(async (tx) => ...)`. */
+export type TTx = Prisma.TransactionClient;
+
+// busy_timeout first, so that switching to WAL waits for a lock instead of failing.
+const SQLITE_PRAGMAS = ["busy_timeout = 5000", "journal_mode = WAL", "synchronous = NORMAL", "foreign_keys = ON"]
+  .map((pragma) => `PRAGMA ${pragma};`)
+  .join("\n");
+
+/** A new client on `url` (default DATABASE_URL, else file:./data/leadger.db). Prefer db() in app code. */
+export function createDb(url: string = process.env.DATABASE_URL || DEFAULT_DATABASE_URL): TDb {
+  if (databaseProvider(url) === "postgresql") {
+    // The one cast between the two generated clients (same models, same API).
+    return new PostgresPrismaClient({ adapter: new PrismaPg(pgConfig(url)) }) as unknown as TDb;
+  }
+  const file = sqliteFilePath(url);
+  mkdirSync(path.dirname(file), { recursive: true });
+  return new SqlitePrismaClient({ adapter: withPragmas(new PrismaBetterSqlite3({ url: `file:${file}` })) });
+}
+
+/** The adapter opens the better-sqlite3 connection itself; the PRAGMAs are set on each one it opens. */
+function withPragmas(factory: PrismaBetterSqlite3): SqlDriverAdapterFactory {
+  return {
+    provider: factory.provider,
+    adapterName: factory.adapterName,
+    connect: async () => {
+      const adapter = await factory.connect();
+      await adapter.executeScript(SQLITE_PRAGMAS);
+      return adapter;
+    },
+  };
+}
+
+type TDbCache = { url: string; client: TDb };
+const cache = globalThis as typeof globalThis & { __leadgerDb?: TDbCache };
+
+/**
+ * The process's one client on DATABASE_URL, kept on globalThis so that Next's dev reloads reuse it.
+ * A changed DATABASE_URL (a test worker's own database) gets a new client.
+ */
+export function db(): TDb {
+  const url = process.env.DATABASE_URL || DEFAULT_DATABASE_URL;
+  if (cache.__leadgerDb?.url !== url) {
+    void cache.__leadgerDb?.client.$disconnect();
+    cache.__leadgerDb = { url, client: createDb(url) };
+  }
+  return cache.__leadgerDb.client;
+}
