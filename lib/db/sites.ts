@@ -14,6 +14,16 @@ export async function siteFor(actor: TActor, siteId: string, action: TAction) {
   return site;
 }
 
+/**
+ * The same check without loading the row: a role at a site proves the site exists in the actor's organisation
+ * (memberships and keys only ever point at their own organisation's sites), so only a refusal costs a query.
+ */
+export async function requireSite(actor: TActor, siteId: string, action: TAction): Promise<string> {
+  if (can(actor, action, siteId)) return siteId;
+  await siteFor(actor, siteId, action);
+  return siteId;
+}
+
 /** The sites an actor may see for an action, in name order: the scope of lists and roll-ups. */
 export async function visibleSites(actor: TActor, action: TAction = "units.read") {
   return db().site.findMany({

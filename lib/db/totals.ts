@@ -1,4 +1,4 @@
-import type { TTx } from "./client";
+import type { TDb, TTx } from "./client";
 
 /** The running totals kept on sites, bays and containers. Masses in kg. */
 export type TTotals = { unitCount: number; batteryKg: number; leadKg: number; electrolyteKg: number; acidKg: number };
@@ -39,22 +39,44 @@ export const incrementBy = (d: TTotals) => ({
 });
 
 /**
+ * The highest battery mass on hand at the site in `year`, for the handler category that, once reached, holds to
+ * the end of the calendar year (40 CFR 273.9). Only decreases store a peak: while on-hand only grows, the peak is
+ * the amount on hand now, so intake never has to touch it.
+ */
+export function yearPeakKg(site: { batteryKg: number; peakYear: number; peakBatteryKg: number }, year: number): number {
+  if (site.peakYear === year) return Math.max(site.peakBatteryKg, site.batteryKg);
+  // No decrease recorded this year: on-hand has only grown since 1 January, so now is the year's peak so far.
+  return site.peakYear < year ? site.batteryKg : 0;
+}
+
+/** The two writes of an increase, unawaited, for a batch `$transaction([...])`. */
+export function siteIncreaseOps(
+  client: TTx | TDb,
+  { siteId, delta, reason, refId, at }: { siteId: string; delta: TTotals; reason: string; refId?: string; at: Date },
+) {
+  return [
+    client.site.update({ where: { id: siteId }, data: incrementBy(delta), select: { unitCount: true, batteryKg: true, leadKg: true, electrolyteKg: true, acidKg: true } }),
+    client.levelChange.create({ data: { siteId, at, reason, refId, ...delta }, select: { id: true } }),
+  ] as const;
+}
+
+/**
  * Moves the site's on-hand totals by a delta and records it in the level ledger (the source of the annual
- * figures and intake rates), keeping the year's peak battery mass for the sticky handler category.
+ * figures and intake rates). Before a decrease, the year's peak so far is stored (see yearPeakKg).
  */
 export async function changeSiteLevel(
   tx: TTx,
   { siteId, delta, reason, refId, at }: { siteId: string; delta: TTotals; reason: string; refId?: string; at: Date },
 ): Promise<TTotals> {
-  const site = await tx.site.update({ where: { id: siteId }, data: incrementBy(delta) });
-  const year = at.getUTCFullYear();
-  const before = site.batteryKg - delta.batteryKg;
-  if (year > site.peakYear) {
-    // A new calendar year: the category starts again from what is on hand now (40 CFR 273.9).
-    await tx.site.update({ where: { id: siteId }, data: { peakYear: year, peakBatteryKg: Math.max(before, site.batteryKg) } });
-  } else if (year === site.peakYear && site.batteryKg > site.peakBatteryKg) {
-    await tx.site.update({ where: { id: siteId }, data: { peakBatteryKg: site.batteryKg } });
+  if (delta.batteryKg < 0) {
+    const current = await tx.site.findUniqueOrThrow({ where: { id: siteId }, select: { batteryKg: true, peakYear: true, peakBatteryKg: true } });
+    const year = at.getUTCFullYear();
+    if (year >= current.peakYear) {
+      await tx.site.update({ where: { id: siteId }, data: { peakYear: year, peakBatteryKg: yearPeakKg(current, year) } });
+    }
   }
-  await tx.levelChange.create({ data: { siteId, at, reason, refId, ...delta } });
+  const [siteUpdate, levelInsert] = siteIncreaseOps(tx, { siteId, delta, reason, refId, at });
+  const site = await siteUpdate;
+  await levelInsert;
   return pickTotals(site);
 }

@@ -1,5 +1,5 @@
 import type { TActor } from "@/lib/auth/permissions";
-import type { TTx } from "./client";
+import type { TDb, TTx } from "./client";
 
 export type TTrailEntry = {
   siteId: string | null;
@@ -13,9 +13,12 @@ export type TTrailEntry = {
 
 const json = (value: unknown) => (value === undefined || value === null ? null : JSON.stringify(value));
 
-/** Appends one trail event inside the caller's transaction: the change and its record commit together or not at all. */
-export async function writeTrail(tx: TTx, actor: TActor, entry: TTrailEntry): Promise<void> {
-  await tx.trailEvent.create({
+/**
+ * Appends one trail event inside the caller's transaction: the change and its record commit together or not at
+ * all. Returns the query unawaited, so it also fits a batch `$transaction([...])`.
+ */
+export function writeTrail(tx: TTx | TDb, actor: TActor, entry: TTrailEntry) {
+  return tx.trailEvent.create({
     data: {
       organisationId: actor.organisationId,
       siteId: entry.siteId,
@@ -28,5 +31,6 @@ export async function writeTrail(tx: TTx, actor: TActor, entry: TTrailEntry): Pr
       before: json(entry.before),
       after: json(entry.after),
     },
+    select: { id: true },
   });
 }

@@ -4,7 +4,7 @@ import { sitesWhere, type TActor } from "@/lib/auth/permissions";
 import { AppError } from "@/lib/errors";
 import { needsClosedContainer, type TUnitIntake } from "@/lib/intake/schema";
 import { db, type TTx } from "./client";
-import { siteFor } from "./sites";
+import { requireSite, siteFor } from "./sites";
 import { changeSiteLevel, incrementBy, type TTotals } from "./totals";
 import { writeTrail } from "./trail";
 
@@ -60,68 +60,47 @@ export async function recordIntake(
   idempotencyKey?: string,
   { at }: { at?: Date } = {},
 ): Promise<TIntakeResult> {
-  const site = await siteFor(actor, input.site, "units.create");
+  const siteId = await requireSite(actor, input.site, "units.create");
   const scope = `${actor.ref} ${INTAKE_SCOPE}`;
-  if (idempotencyKey) {
-    const earlier = await replay(scope, idempotencyKey);
-    if (earlier) return earlier;
-  }
   const { composition, columns } = compositionColumns(input);
   const id = randomUUID();
   // `at` lets the demo loader and imports backdate an intake; the API always uses the current time.
   const now = at ?? new Date();
-  const delta: TTotals = {
-    unitCount: 1,
-    batteryKg: columns.batteryKg,
-    leadKg: columns.leadKg,
-    electrolyteKg: columns.electrolyteKg,
-    acidKg: columns.acidKg,
+  const delta: TTotals = { unitCount: 1, batteryKg: columns.batteryKg, leadKg: columns.leadKg, electrolyteKg: columns.electrolyteKg, acidKg: columns.acidKg };
+  const unitData = {
+    id,
+    siteId,
+    kind: input.kind,
+    nominalVoltage: input.nominalVoltage,
+    capacityAh: input.capacityAh ?? null,
+    cca: input.cca ?? null,
+    groupSize: input.groupSize ?? null,
+    weightKg: input.weightKg ?? null,
+    condition: input.condition,
+    source: input.source,
+    saleRef: input.saleRef ?? null,
+    note: input.note ?? null,
+    receivedAt: now,
+    receivedBy: actor.ref,
+    ...columns,
   };
   try {
     return await db().$transaction(async (tx) => {
-      const container = input.containerId ? await stowTarget(tx, site.id, input.containerId, input.condition) : null;
-      const unit = await tx.unit.create({
-        data: {
-          id,
-          siteId: site.id,
-          containerId: container?.id ?? null,
-          kind: input.kind,
-          nominalVoltage: input.nominalVoltage,
-          capacityAh: input.capacityAh ?? null,
-          cca: input.cca ?? null,
-          groupSize: input.groupSize ?? null,
-          weightKg: input.weightKg ?? null,
-          condition: input.condition,
-          source: input.source,
-          state: container ? "stowed" : "received",
-          saleRef: input.saleRef ?? null,
-          note: input.note ?? null,
-          receivedAt: now,
-          receivedBy: actor.ref,
-          ...columns,
-        },
-      });
+      const container = input.containerId ? await stowTarget(tx, siteId, input.containerId, input.condition) : null;
+      const unit = await tx.unit.create({ data: { ...unitData, containerId: container?.id ?? null, state: container ? "stowed" : "received" } });
       if (container) {
-        await tx.container.update({
-          where: { id: container.id },
-          data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now },
-        });
+        await tx.container.update({ where: { id: container.id }, data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now } });
         if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
       }
-      const totals = await changeSiteLevel(tx, { siteId: site.id, delta, reason: "intake", refId: id, at: now });
-      const body = {
-        unit: { ...unit, notes: composition.notes, warnings: composition.warnings },
-        composition,
-        siteTotals: totals,
-      };
-      await writeTrail(tx, actor, { siteId: site.id, action: "unit.received", entity: "unit", entityId: id, after: unit, at: now });
-      if (idempotencyKey) {
-        await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) } });
-      }
+      const totals = await changeSiteLevel(tx, { siteId, delta, reason: "intake", refId: id, at: now });
+      await writeTrail(tx, actor, { siteId, action: "unit.received", entity: "unit", entityId: id, after: unit, at: now });
+      const body = { unit: { ...unit, notes: composition.notes, warnings: composition.warnings }, composition, siteTotals: totals };
+      // A used key fails here on the unique (scope, key), rolling all of this back; the catch answers with the first response.
+      if (idempotencyKey) await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) }, select: { id: true } });
       return { status: 201, body, isReplay: false };
     });
   } catch (error) {
-    // Two requests with the same key at once: the loser answers with the winner's response.
+    // A used key (a retry, or two requests at once): answer with the first response.
     if (idempotencyKey && (error as { code?: string }).code === "P2002") {
       const earlier = await replay(scope, idempotencyKey);
       if (earlier) return earlier;
