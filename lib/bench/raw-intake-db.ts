@@ -1,6 +1,7 @@
 import Database from "better-sqlite3";
 import pg from "pg";
 import { databaseProvider, pgConfig, sqliteFilePath, DEFAULT_DATABASE_URL } from "@/lib/db/migrate/database-url";
+import { pgTime, sqliteTime } from "@/lib/db/fast-intake";
 import { RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "./raw-intake";
 
 type TRaw = (siteId: string) => Promise<void>;
@@ -16,7 +17,7 @@ function open(): TRaw {
       const client = await pool.connect();
       try {
         await client.query("BEGIN");
-        await client.query(insert, rawUnitArgs(siteId));
+        await client.query(insert, rawUnitArgs(siteId, pgTime));
         await client.query(update, [siteId]);
         await client.query("COMMIT");
       } catch (error) {
@@ -34,7 +35,7 @@ function open(): TRaw {
   const insert = sqlite.prepare(RAW_UNIT_INSERT);
   const update = sqlite.prepare(RAW_TOTALS_UPDATE);
   const tx = sqlite.transaction((siteId: string) => {
-    insert.run(...rawUnitArgs(siteId));
+    insert.run(...rawUnitArgs(siteId, sqliteTime));
     update.run(siteId);
   });
   return async (siteId) => void tx(siteId);

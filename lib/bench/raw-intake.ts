@@ -18,4 +18,5 @@ export const toPg = (sql: string) => {
   return sql.replace(/\?/g, () => `$${++n}`);
 };
 
-export const rawUnitArgs = (siteId: string, at = new Date()) => [randomUUID(), siteId, at.toISOString()];
+/** Arguments of RAW_UNIT_INSERT; `time` formats the timestamp as the provider's rows hold it. */
+export const rawUnitArgs = (siteId: string, time: (d: Date) => string, at = new Date()) => [randomUUID(), siteId, time(at)];

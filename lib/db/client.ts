@@ -4,10 +4,10 @@ import { mkdirSync } from "node:fs";
 import path from "node:path";
 import { PrismaBetterSqlite3 } from "@prisma/adapter-better-sqlite3";
 import { PrismaPg } from "@prisma/adapter-pg";
-import type { SqlDriverAdapterFactory } from "@prisma/driver-adapter-utils";
 import { PrismaClient as PostgresPrismaClient } from "./generated/postgres/client";
 import { type Prisma, PrismaClient as SqlitePrismaClient } from "./generated/sqlite/client";
 import { databaseProvider, DEFAULT_DATABASE_URL, pgConfig, sqliteFilePath } from "./migrate/database-url";
+import { sharedSqliteConnection, type TSqliteConnection } from "./sqlite-connection";
 
 export { databaseProvider, type TDatabaseProvider } from "./migrate/database-url";
 
@@ -34,20 +34,22 @@ export function createDb(url: string = process.env.DATABASE_URL || DEFAULT_DATAB
   }
   const file = sqliteFilePath(url);
   mkdirSync(path.dirname(file), { recursive: true });
-  return new SqlitePrismaClient({ adapter: withPragmas(new PrismaBetterSqlite3({ url: `file:${file}` })) });
+  // The adapter opens the better-sqlite3 connection itself; the PRAGMAs are set on the one it opens, and the
+  // connection is shared (under a lock) with the raw hot paths in lib/db/fast-intake.ts.
+  const shared = sharedSqliteConnection(new PrismaBetterSqlite3({ url: `file:${file}` }), (adapter) => adapter.executeScript(SQLITE_PRAGMAS));
+  const client = new SqlitePrismaClient({ adapter: shared.factory });
+  sqliteConnections.set(client, shared.connection);
+  return client;
 }
 
-/** The adapter opens the better-sqlite3 connection itself; the PRAGMAs are set on each one it opens. */
-function withPragmas(factory: PrismaBetterSqlite3): SqlDriverAdapterFactory {
-  return {
-    provider: factory.provider,
-    adapterName: factory.adapterName,
-    connect: async () => {
-      const adapter = await factory.connect();
-      await adapter.executeScript(SQLITE_PRAGMAS);
-      return adapter;
-    },
-  };
+const sqliteConnections = new WeakMap<TDb, () => Promise<TSqliteConnection>>();
+
+/** The SQLite connection under a client, opened if need be; undefined for PostgreSQL. */
+export async function sqliteConnection(client: TDb): Promise<TSqliteConnection | undefined> {
+  const connection = sqliteConnections.get(client);
+  if (!connection) return undefined;
+  await client.$connect();
+  return connection();
 }
 
 type TDbCache = { url: string; client: TDb };

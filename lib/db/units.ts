@@ -5,7 +5,8 @@ import { AppError } from "@/lib/errors";
 import { needsClosedContainer, type TUnitIntake } from "@/lib/intake/schema";
 import { db, type TTx } from "./client";
 import { requireSite, siteFor } from "./sites";
-import { changeSiteLevel, incrementBy, type TTotals } from "./totals";
+import { fastIntake } from "./fast-intake";
+import { changeSiteLevel, incrementBy, pickTotals, type TTotals } from "./totals";
 import { writeTrail } from "./trail";
 
 export type TIntakeResult = { status: number; body: unknown; isReplay: boolean };
@@ -84,17 +85,29 @@ export async function recordIntake(
     receivedBy: actor.ref,
     ...columns,
   };
+  const bodyOf = (unit: object, siteTotals: TTotals) => ({ unit: { ...unit, notes: composition.notes, warnings: composition.warnings }, composition, siteTotals });
   try {
+    if (!input.containerId) {
+      // The common case goes through the raw hot path (lib/db/fast-intake.ts); a stow into a container needs the
+      // container's checks and totals, and stays on Prisma.
+      const unit = { ...unitData, containerId: null, state: "received" };
+      const { body } = await fastIntake(db(), {
+        unit,
+        delta,
+        trail: { organisationId: actor.organisationId, actor: actor.ref, actorLabel: actor.label },
+        idempotency: idempotencyKey ? { scope, key: idempotencyKey } : undefined,
+        bodyOf: (totals) => bodyOf(unit, pickTotals(totals)),
+      });
+      return { status: 201, body, isReplay: false };
+    }
     return await db().$transaction(async (tx) => {
-      const container = input.containerId ? await stowTarget(tx, siteId, input.containerId, input.condition) : null;
-      const unit = await tx.unit.create({ data: { ...unitData, containerId: container?.id ?? null, state: container ? "stowed" : "received" } });
-      if (container) {
-        await tx.container.update({ where: { id: container.id }, data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now } });
-        if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
-      }
+      const container = await stowTarget(tx, siteId, input.containerId!, input.condition);
+      const unit = await tx.unit.create({ data: { ...unitData, containerId: container.id, state: "stowed" } });
+      await tx.container.update({ where: { id: container.id }, data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now } });
+      if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
       const totals = await changeSiteLevel(tx, { siteId, delta, reason: "intake", refId: id, at: now });
       await writeTrail(tx, actor, { siteId, action: "unit.received", entity: "unit", entityId: id, after: unit, at: now });
-      const body = { unit: { ...unit, notes: composition.notes, warnings: composition.warnings }, composition, siteTotals: totals };
+      const body = bodyOf(unit, totals);
       // A used key fails here on the unique (scope, key), rolling all of this back; the catch answers with the first response.
       if (idempotencyKey) await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) }, select: { id: true } });
       return { status: 201, body, isReplay: false };

@@ -16,6 +16,7 @@ import { buildIfNeeded } from "../../scripts/build-if-needed";
 import { databaseProvider, pgConfig, sqliteFilePath } from "../../lib/db/migrate/database-url";
 import { applyMigrations, resetDatabase } from "../../lib/db/migrate/migrations";
 import { RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "../../lib/bench/raw-intake";
+import { pgTime, sqliteTime } from "../../lib/db/fast-intake";
 import { newApiKey } from "../../lib/auth/api-keys";
 
 const root = path.resolve(import.meta.dirname, "../..");
@@ -27,6 +28,7 @@ const PORT = Number(process.env.BENCH_PORT ?? 3210);
 const tmp = mkdtempSync(path.join(os.tmpdir(), "leadger-bench-"));
 const url = process.env.DATABASE_URL?.startsWith("postgres") ? process.env.DATABASE_URL : `file:${path.join(tmp, "bench.db")}`;
 const provider = databaseProvider(url);
+const time = provider === "postgresql" ? pgTime : sqliteTime;
 
 type TSql = { run: (sql: string, args: unknown[]) => Promise<void>; tx: (fn: () => Promise<void>) => Promise<void>; close: () => Promise<void> };
 
@@ -66,19 +68,19 @@ async function seed() {
   const siteId = randomUUID();
   const floorSiteId = randomUUID();
   const { key, prefix, hash } = newApiKey();
-  await sql.run(`INSERT INTO "Organisation" ("id","name","createdAt") VALUES (?,?,?)`, [orgId, "Bench org", new Date().toISOString()]);
+  await sql.run(`INSERT INTO "Organisation" ("id","name","createdAt") VALUES (?,?,?)`, [orgId, "Bench org", time(new Date())]);
   for (const id of [siteId, floorSiteId]) {
-    await sql.run(`INSERT INTO "Site" ("id","organisationId","name","kind","createdAt") VALUES (?,?,?,?,?)`, [id, orgId, `Bench site ${id.slice(0, 4)}`, "store", new Date().toISOString()]);
+    await sql.run(`INSERT INTO "Site" ("id","organisationId","name","kind","createdAt") VALUES (?,?,?,?,?)`, [id, orgId, `Bench site ${id.slice(0, 4)}`, "store", time(new Date())]);
   }
   await sql.run(`INSERT INTO "ApiKey" ("id","organisationId","siteId","role","name","prefix","hash","createdBy","createdAt") VALUES (?,?,?,?,?,?,?,?,?)`, [
-    randomUUID(), orgId, siteId, "clerk", "bench", prefix, hash, "bench", new Date().toISOString(),
+    randomUUID(), orgId, siteId, "clerk", "bench", prefix, hash, "bench", time(new Date()),
   ]);
   const started = Date.now();
   const start = Date.now() - 365 * 86_400_000;
   for (let batch = 0; batch < HISTORY; batch += 5000) {
     await sql.tx(async () => {
       for (let i = batch; i < Math.min(HISTORY, batch + 5000); i++) {
-        await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, new Date(start + (i * 365 * 86_400_000) / HISTORY)));
+        await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, time, new Date(start + (i * 365 * 86_400_000) / HISTORY)));
         await sql.run(RAW_TOTALS_UPDATE, [siteId]);
       }
     });
@@ -96,7 +98,7 @@ async function storageFloor(siteId: string) {
   while (performance.now() < until) {
     const t0 = performance.now();
     await sql.tx(async () => {
-      await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId));
+      await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, time));
       await sql.run(RAW_TOTALS_UPDATE, [siteId]);
     });
     latencies.push(performance.now() - t0);

@@ -42,6 +42,15 @@ describe("POST /api/v1/units", () => {
     expect(after.electrolyteKg).toBeCloseTo(body.unit.electrolyteKg, 9);
     expect(after.acidKg).toBeCloseTo(body.unit.acidKg, 9);
 
+    // The row as the database holds it reads back the same through Prisma (the intake writes it in plain SQL).
+    const stored = await db.unit.findUniqueOrThrow({ where: { id: body.unit.id } });
+    expect(stored.receivedAt.toISOString()).toBe(body.unit.receivedAt);
+    expect(stored).toMatchObject({ siteId: site.id, kind: "flooded", nominalVoltage: 12, capacityAh: 60, weightKg: 18, state: "received", containerId: null });
+    expect(stored.leadKg).toBeCloseTo(body.unit.leadKg, 12);
+    const level = await db.levelChange.findFirstOrThrow({ where: { siteId: site.id } });
+    expect(level).toMatchObject({ reason: "intake", refId: body.unit.id, unitCount: 1 });
+    expect(level.at.toISOString()).toBe(body.unit.receivedAt);
+
     const events = await db.trailEvent.findMany({ where: { siteId: site.id } });
     expect(events).toHaveLength(1);
     expect(events[0]).toMatchObject({ action: "unit.received", entity: "unit", entityId: body.unit.id, actor: `key:${keyId}` });
