@@ -4,7 +4,8 @@
 //   tsx scripts/db.ts migrate      apply pending migrations
 //   tsx scripts/db.ts status       pending / applied (exit 1 unless up to date)
 //   tsx scripts/db.ts reset        drop everything and migrate again (refused in production without --force)
-//   tsx scripts/db.ts check        drift check of both migration sets against the schema (exit 1 on drift)
+//   tsx scripts/db.ts check        drift check of both migration sets against the schema (exit 1 on drift;
+//                                  PostgreSQL's needs a server: TEST_DATABASE_URL's, else a throwaway one)
 import { mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -25,6 +26,7 @@ import {
   type TDatabaseProvider,
   type TMigrationStatus,
 } from "../lib/db/migrate";
+import { ensurePostgres, type TPostgres } from "./pg-ensure";
 import { isPostgresSchemaCurrent, writePostgresSchema } from "./prisma-generate";
 
 const LABEL: Record<TDatabaseProvider, string> = { sqlite: "SQLite", postgresql: "PostgreSQL" };
@@ -114,13 +116,19 @@ async function check(): Promise<number> {
     code = 1;
   };
   report("sqlite", await withScratchSqlite((url) => diffSchemaAgainstMigrations({ provider: "sqlite", url })));
-  const serverUrl = postgresServerUrl();
-  const unreachable = await postgresUnreachableReason(serverUrl);
-  if (unreachable) {
-    console.error(`PostgreSQL: NOT CHECKED, ${unreachable}`);
+  // The PostgreSQL diff needs a server for its shadow database: TEST_DATABASE_URL's, or a throwaway one.
+  let postgres: TPostgres;
+  try {
+    postgres = await ensurePostgres({ url: postgresServerUrl() });
+  } catch (error) {
+    console.error(`PostgreSQL: NOT CHECKED, ${error instanceof Error ? error.message : String(error)}`);
     return code || 2;
   }
-  report("postgresql", await diffSchemaAgainstMigrations({ provider: "postgresql", url: serverUrl }));
+  try {
+    report("postgresql", await diffSchemaAgainstMigrations({ provider: "postgresql", url: postgres.url }));
+  } finally {
+    await postgres.stop();
+  }
   return code;
 }
 

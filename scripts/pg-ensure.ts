@@ -1,7 +1,8 @@
 // Makes sure a PostgreSQL answers at TEST_DATABASE_URL (default postgresql://postgres@127.0.0.1:5432/test).
 // If none does, starts a throwaway cluster (trust auth, a temp dir, a free port on 127.0.0.1),
 // installing Debian's postgresql first if its binaries are missing (root only), and prints its URL.
-//   tsx scripts/pg-ensure.ts        (the throwaway server keeps running; the stop command is printed)
+//   tsx scripts/pg-ensure.ts        (the throwaway server keeps running; the stop command is printed;
+//                                    stdout is the URL alone)
 import { execFileSync } from "node:child_process";
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync } from "node:fs";
 import net from "node:net";
@@ -14,6 +15,8 @@ export type TPostgres = {
   url: string;
   /** true when this call started the server; stop() then shuts it down and deletes its files. */
   isThrowaway: boolean;
+  /** The shell command that stops a throwaway server from outside this process. */
+  stopCommand?: string;
   stop(): Promise<void>;
 };
 
@@ -50,10 +53,11 @@ export async function ensurePostgres({ url = postgresServerUrl() }: { url?: stri
   const serverUrl = `postgresql://postgres@127.0.0.1:${port}/postgres`;
   const testUrl = database === "postgres" ? serverUrl : await createDatabase({ url: serverUrl, name: database });
   const stopCommand = `${asRoot ? "runuser -u postgres -- " : ""}${path.join(bin, "pg_ctl")} -D ${dataDir} stop -m fast && rm -rf ${root}`;
-  loud([`Throwaway PostgreSQL running: ${testUrl}`, `Use it with: export TEST_DATABASE_URL=${testUrl}`, `Stop it with: ${stopCommand}`]);
+  loud([`Throwaway PostgreSQL running: ${testUrl}`]);
   return {
     url: testUrl,
     isThrowaway: true,
+    stopCommand,
     stop: async () => {
       try {
         pgCtl("stop", "-m", "fast");
@@ -110,7 +114,9 @@ function processError(error: unknown): string {
 if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
   ensurePostgres().then(
     (postgres) => {
-      if (!postgres.isThrowaway) console.log(`PostgreSQL is reachable: ${redactUrl(postgres.url)}`);
+      if (postgres.isThrowaway) loud([`Use it with: export TEST_DATABASE_URL=${postgres.url}`, `Stop it with: ${postgres.stopCommand}`]);
+      else console.error(`PostgreSQL is reachable: ${redactUrl(postgres.url)}`);
+      // stdout carries the URL alone, for `TEST_DATABASE_URL=$(npm run --silent pg:ensure)`.
       console.log(postgres.url);
     },
     (error: unknown) => {

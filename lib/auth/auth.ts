@@ -23,6 +23,10 @@ function createAuth() {
       storage: "database",
       window: 10,
       max: 100,
+      // Sign-in has its own limit (lib/auth/sign-in-limit.ts: failed tries per account and per address, with
+      // Retry-After). The library's default of 3 sign-ins per 10 s per address would also count successful
+      // ones and refuse a shop's clerks signing in together, with a vaguer message and no Retry-After.
+      customRules: { "/sign-in/email": false },
     },
     advanced: {
       useSecureCookies: true,

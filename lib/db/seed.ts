@@ -7,6 +7,12 @@ import { ZUnitIntake } from "@/lib/intake/schema";
 import { DEMO_ORG, DEMO_PEOPLE, DEMO_SITES, DEMO_UNIT_MIX, seededRandom, type TDemoSiteKey } from "@/lib/demo/scenario";
 import { db } from "./client";
 import { recordIntake } from "./units";
+import { recordRefund, recordSale, runForfeits } from "./deposits";
+import { addDays, calendarDay } from "@/lib/deposits/calendar-day";
+import { addCustomRule } from "./limits";
+import { receiveLot } from "./lots";
+import { stowIntoContainer, updateContainer } from "./yard";
+import { addContainers, createLoad } from "./loads";
 
 export const DEMO_KEY_FILE = path.resolve(process.env.LEADGER_DATA_DIR ?? "data", "demo-api-key");
 
@@ -74,10 +80,129 @@ export async function seedDemo({ unitsPerStore = 120, unitsAtYard = 160 } = {}):
       await recordIntake(actor, input, undefined, { at: new Date(now - daysAgo * 86_400_000) });
     }
   }
+  await seedYardDemo(systemActor(org.id, siteIds.yard), siteIds.yard, now);
+  await seedLoadsDemo(systemActor(org.id, siteIds.yard), siteIds.yard, now);
+  await seedDepositsDemo(org.id, siteIds, now);
   return { apiKey: key, siteIds };
 }
 
 /** The demo loader acts as the system, with admin rights at one site, and is named so in the trail. */
 function systemActor(organisationId: string, siteId: string): TActor {
   return { kind: "system", id: "demo", ref: "system:demo", label: "Demo loader", organisationId, roles: new Map<string, TRole>([[siteId, "admin"]]) };
+}
+
+/** An invented permit limit at the demo yard: a site rule the Limits screen shows beside the rulebook's. */
+export const DEMO_YARD_RULE = {
+  title: "Fire permit: at most 250 batteries in the yard",
+  metric: "unit-count",
+  threshold: 250,
+  unit: "count",
+  warningPct: 80,
+  citation: "Quarry Bend fire permit FP-2026-014, condition 7 (an invented demo permit)",
+  caution: "A demo rule: a real permit sets its own limit and wording; keep a copy of it with the site's records.",
+} as const;
+
+/** The demo yard's containers in use: two pallets filled (one sealed), one in Bay B, one lot from a scale ticket, and the permit rule. */
+async function seedYardDemo(actor: TActor, yardId: string, now: number) {
+  const client = db();
+  const label = async (labelNumber: string) => client.container.findUniqueOrThrow({ where: { siteId_labelNumber: { siteId: yardId, labelNumber } } });
+  const loose = (await client.unit.findMany({ where: { siteId: yardId, containerId: null }, orderBy: { receivedAt: "asc" }, select: { id: true } })).map((u) => u.id);
+  const [p1, p2, p3, p4] = await Promise.all(["YD-PAL-001", "YD-PAL-002", "YD-PAL-003", "YD-PAL-004"].map(label));
+  const at = (daysAgo: number) => ({ at: new Date(now - daysAgo * 86_400_000) });
+  await stowIntoContainer(actor, p1!.id, { unitIds: loose.slice(0, 40) }, at(50));
+  await updateContainer(actor, p1!.id, { state: "sealed" }, at(49));
+  await stowIntoContainer(actor, p2!.id, { unitIds: loose.slice(40, 80) }, at(25));
+  const bayB = await client.bay.findUniqueOrThrow({ where: { siteId_name: { siteId: yardId, name: "Bay B" } } });
+  await updateContainer(actor, p3!.id, { bayId: bayB.id }, at(20));
+  await stowIntoContainer(actor, p3!.id, { unitIds: loose.slice(80, 110) }, at(10));
+  await receiveLot(
+    actor,
+    { site: yardId, ticketNumber: "QB-2026-0412", grossKg: 1_980, tareKg: 1_600, unitCount: 19, mixBasis: "count", mix: [{ kind: "flooded", nominalVoltage: 12, count: 15 }, { kind: "agm", nominalVoltage: 12, count: 4 }], containerId: p4!.id },
+    at(5),
+  );
+  await addCustomRule(actor, yardId, { ...DEMO_YARD_RULE });
+}
+
+/** An invented secondary lead smelter and carrier for the demo; no real company is meant. */
+export const DEMO_FACILITY = {
+  name: "Cinderwell Secondary Lead Works (demo)",
+  address: "400 Furnace Road\nAshgrove Flats",
+  regulatoryIds: "EPA ID XXD000000001 (invented)",
+  tolerancePct: 2,
+} as const;
+export const DEMO_CARRIER = { name: "Tallow Creek Haulage (demo)", address: "12 Depot Lane\nQuarry Bend", regulatoryIds: "USDOT 0000000 (invented)" } as const;
+
+/**
+ * Loads at the demo yard: the facility and carrier, two more pallets sealed from the yard's newest loose units
+ * (YD-PAL-005 and YD-PAL-006; the yard's own pallets are left as the Yard demo set them), and a load being
+ * planned with YD-PAL-005 on it. YD-PAL-006 stays free for a person (or e2e/loads.spec.ts) to plan a load with.
+ */
+async function seedLoadsDemo(actor: TActor, yardId: string, now: number) {
+  const client = db();
+  const org = (await client.site.findUniqueOrThrow({ where: { id: yardId } })).organisationId;
+  const facility = await client.facility.create({ data: { organisationId: org, ...DEMO_FACILITY } });
+  await client.carrier.create({ data: { organisationId: org, ...DEMO_CARRIER } });
+  const bayA = await client.bay.findUnique({ where: { siteId_name: { siteId: yardId, name: "Bay A" } } });
+  const loose = (await client.unit.findMany({ where: { siteId: yardId, containerId: null, state: "received" }, orderBy: { receivedAt: "desc" }, take: 30, select: { id: true } })).map((u) => u.id);
+  const at = (daysAgo: number) => ({ at: new Date(now - daysAgo * 86_400_000) });
+  const sealed: string[] = [];
+  for (const [i, labelNumber] of ["YD-PAL-005", "YD-PAL-006"].entries()) {
+    const unitIds = loose.slice(i * 15, i * 15 + 15);
+    if (unitIds.length === 0) break;
+    const pallet = await client.container.create({ data: { siteId: yardId, labelNumber, kind: "pallet", bayId: bayA?.id ?? null } });
+    await stowIntoContainer(actor, pallet.id, { unitIds }, at(2));
+    await updateContainer(actor, pallet.id, { state: "sealed" }, at(1));
+    sealed.push(pallet.id);
+  }
+  if (sealed.length === 0) return;
+  const load = await createLoad(actor, { site: yardId, facilityId: facility.id, vehicle: "", basis: "us-full" }, at(1));
+  await addContainers(actor, load.load.id, { containerIds: [sealed[0]!] }, at(1));
+}
+
+const DEMO_SALE_PRODUCTS = [
+  { product: "Starter 12 V 60 Ah", groupSize: "24F" },
+  { product: "Starter 12 V 70 Ah AGM", groupSize: "H6" },
+  { product: "Deep cycle 12 V 100 Ah", groupSize: "27" },
+  { product: "Powersport 12 V 12 Ah", groupSize: "" },
+] as const;
+
+/**
+ * Five weeks of invented sales at the two stores under the Washington rule, at an invented $15 core charge a
+ * battery (the rule's least is $5): some with the used battery handed in, many refunded inside the window,
+ * and one old sale never returned, which the forfeit run at the end books as the demo's one forfeit.
+ */
+async function seedDepositsDemo(organisationId: string, siteIds: Record<TDemoSiteKey, string>, now: number) {
+  const random = seededRandom(20261202);
+  const today = calendarDay(new Date(now), "America/Los_Angeles");
+  for (const siteKey of ["harbor", "kiln"] as const) {
+    const siteId = siteIds[siteKey];
+    const actor = systemActor(organisationId, siteId);
+    await db().site.update({ where: { id: siteId }, data: { depositRuleId: "us-wa" } });
+    const refunds: { saleRef: string; at: Date }[] = [];
+    let n = 0;
+    for (let ageDays = 36; ageDays >= 1; ageDays--) {
+      const salesThatDay = random() < 0.4 ? 1 : 2;
+      for (let k = 0; k < salesThatDay; k++) {
+        const saleRef = `${siteKey === "harbor" ? "HB" : "KR"}-${String(4100 + ++n)}`;
+        const quantity = random() < 0.2 ? 2 : 1;
+        const isForfeitDemo = siteKey === "harbor" && n === 1;
+        const handedIn = !isForfeitDemo && random() < 0.35 ? quantity : 0;
+        const item = DEMO_SALE_PRODUCTS[Math.floor(random() * DEMO_SALE_PRODUCTS.length)]!;
+        const soldOn = addDays(today, -ageDays);
+        const common = { site: siteId, saleRef, ...item, quantity, soldOn };
+        await recordSale(actor, handedIn === quantity ? { kind: "credit", ...common } : { kind: "charge", ...common, chargeCents: 1_500, handedIn }, { at: new Date(now) });
+        if (handedIn === quantity) continue;
+        // Past the window every charged battery came back, but for the first sale at Harbor Street: the one forfeit.
+        const isReturned = ageDays > 30 ? !isForfeitDemo : random() < 0.45;
+        const backAfterDays = 1 + Math.floor(random() * 20);
+        if (isReturned && backAfterDays < ageDays) {
+          for (let b = 0; b < quantity; b++) refunds.push({ saleRef, at: new Date(`${addDays(soldOn, backAfterDays)}T19:00:00.000Z`) });
+        }
+      }
+    }
+    for (const r of refunds.sort((a, b) => a.at.getTime() - b.at.getTime())) {
+      await recordRefund(actor, { kind: "refund", site: siteId, saleRef: r.saleRef }, { at: r.at });
+    }
+    await runForfeits(actor, { siteId, at: new Date(now) });
+  }
 }

@@ -3,12 +3,25 @@
 import { useRef, useState } from "react";
 import { TotalsFigures, type TTotalsView } from "@/app/_ui/totals-figures";
 import { formatMass, lbToKg, type TUnitSystem } from "@/lib/units";
+import { dollars } from "../deposits/money";
 
 type TOption = { id: string; label: string };
 type TLatest = { id: string; receivedAt: string; kind: string; nominalVoltage: number; condition: string; batteryKg: number; leadKg: number };
 type TIssue = { field: string; message: string };
 
 const VOLTAGES = [2, 6, 8, 12, 24, 36, 48];
+
+type TReturnCheck = {
+  sale: { saleRef: string; soldOn: string; product: string; quantity: number; heldCents: number };
+  due: { isInsideWindow: boolean; daysSinceSale: number; windowDays: number; lastRefundDay: string; refundCents: number; reason: string };
+  options: { kind: string; text: string }[];
+  rule: { title: string; citation: string };
+  equivalentSize: { isEquivalent: boolean | null; text: string } | null;
+  caution: string;
+};
+type TDepositCheck = { saleRef: string; status: "loading" | "found" | "missing" | "error"; check?: TReturnCheck; message?: string };
+const ACTION_LABELS: Record<string, string> = { refund: "Pay the refund", credit: "Handed in at the sale", "accept-free": "Take back free", forfeit: "Take back, record the forfeit" };
+const LOOKUP_DELAY_MS = 400;
 const NEEDS_CLOSED = new Set(["leaking", "cracked"]);
 
 export function CounterForm(props: {
@@ -20,6 +33,8 @@ export function CounterForm(props: {
   handling: { title: string; steps: string[]; citation: string };
   initialTotals: TTotalsView;
   initialLatest: TLatest[];
+  /** The refund check at the Counter: shown where the person may book deposits at this site. */
+  canBookDeposits?: boolean;
 }) {
   const system: TUnitSystem = props.site.unitSystem === "lb" ? "lb" : "kg";
   const [kind, setKind] = useState(props.kinds[0]!.id);
@@ -36,6 +51,44 @@ export function CounterForm(props: {
   const formRef = useRef<HTMLFormElement>(null);
   const firstVarying = useRef<HTMLInputElement>(null);
   const isDamaged = NEEDS_CLOSED.has(condition);
+  const [depositCheck, setDepositCheck] = useState<TDepositCheck | null>(null);
+  const [depositAction, setDepositAction] = useState("refund");
+  const [depositResult, setDepositResult] = useState<{ text: string; isBooked: boolean } | null>(null);
+  const lookupTimer = useRef<ReturnType<typeof setTimeout> | undefined>(undefined);
+  const lookupSeq = useRef(0);
+
+  /** Looks the sale up: the window verdict, the refund due and what the rule allows. */
+  async function lookUpSale(saleRef: string) {
+    clearTimeout(lookupTimer.current);
+    const seq = ++lookupSeq.current;
+    setDepositCheck({ saleRef, status: "loading" });
+    const elements = formRef.current?.elements;
+    const value = (name: string) => ((elements?.namedItem(name) as HTMLInputElement | null)?.value ?? "").trim();
+    const query = new URLSearchParams({ site: props.site.id, sale: saleRef });
+    const weight = Number(value("weight"));
+    if (value("weight") !== "" && weight > 0) query.set("weightKg", String(weightUnit === "lb" ? lbToKg(weight) : weight));
+    if (value("groupSize")) query.set("groupSize", value("groupSize"));
+    const response = await fetch(`/api/v1/deposits/check?${query}`).catch(() => null);
+    const body = response ? await response.json().catch(() => ({})) : {};
+    if (seq !== lookupSeq.current) return;
+    if (response?.ok) {
+      setDepositCheck({ saleRef, status: "found", check: body });
+      setDepositAction(body.options?.[0]?.kind ?? "accept-free");
+    } else if (response?.status === 404) {
+      setDepositCheck({ saleRef, status: "missing", message: body.error?.message });
+    } else {
+      setDepositCheck({ saleRef, status: "error", message: body.error?.message ?? "The deposit check did not answer." });
+    }
+  }
+
+  function onSaleRefChange(event: React.ChangeEvent<HTMLInputElement>) {
+    if (!props.canBookDeposits) return;
+    const saleRef = event.target.value.trim();
+    clearTimeout(lookupTimer.current);
+    lookupSeq.current++;
+    setDepositCheck(null);
+    if (saleRef) lookupTimer.current = setTimeout(() => void lookUpSale(saleRef), LOOKUP_DELAY_MS);
+  }
 
   const issueFor = (field: string) => issues.find((i) => i.field === field)?.message;
 
@@ -61,17 +114,25 @@ export function CounterForm(props: {
       containerId: isDamaged ? String(form.get("containerId") ?? "") || undefined : undefined,
       saleRef: String(form.get("saleRef") ?? "").trim() || undefined,
     };
+    // A sale reference not yet looked up is checked first (a scanner's Enter included): the clerk sees the refund before saving.
+    if (props.canBookDeposits && body.saleRef && (depositCheck?.saleRef !== body.saleRef || depositCheck.status === "loading")) {
+      await lookUpSale(body.saleRef);
+      return;
+    }
+    const withDeposit = props.canBookDeposits && depositCheck?.status === "found" && depositCheck.saleRef === body.saleRef;
     setBusy(true);
     setMessage(null);
-    const response = await fetch("/api/v1/units", {
+    setDepositResult(null);
+    const response = await fetch(withDeposit ? "/api/v1/deposits/returns" : "/api/v1/units", {
       method: "POST",
       headers: { "content-type": "application/json", "idempotency-key": crypto.randomUUID() },
-      body: JSON.stringify(body),
+      body: JSON.stringify(withDeposit ? { unit: body, action: depositAction } : body),
     });
     const result = await response.json().catch(() => ({}));
     setBusy(false);
     if (!response.ok) {
-      setIssues(result.error?.issues ?? []);
+      const all: TIssue[] = result.error?.issues ?? [];
+      setIssues(all.map((i) => ({ ...i, field: i.field.replace(/^unit\./, "") })));
       setMessage({ text: result.error?.message ?? "Not saved.", isError: true });
       return;
     }
@@ -87,6 +148,16 @@ export function CounterForm(props: {
     }
     setCondition("intact");
     setMessage({ text: `Saved: ${props.kinds.find((k) => k.id === unit.kind)?.label ?? unit.kind}, ${unit.nominalVoltage} V.`, isError: false });
+    if (result.deposit) {
+      const deposit = result.deposit as { isBooked: boolean; message: string; balanceCents?: number };
+      setDepositResult({
+        text: deposit.isBooked && deposit.balanceCents !== undefined ? `${deposit.message} Deposits held now: ${dollars(deposit.balanceCents)}.` : deposit.message,
+        isBooked: deposit.isBooked,
+      });
+    } else if (depositCheck?.status === "missing" && depositCheck.saleRef === body.saleRef) {
+      setDepositResult({ text: `No sale ${body.saleRef} at this store: the unit is logged with the reference, without a deposit entry.`, isBooked: false });
+    }
+    setDepositCheck(null);
     firstVarying.current?.focus();
   }
 
@@ -169,8 +240,13 @@ export function CounterForm(props: {
           <label htmlFor="saleRef">
             Sale reference <span className="hint">optional</span>
           </label>
-          <input id="saleRef" name="saleRef" autoComplete="off" />
+          <input id="saleRef" name="saleRef" autoComplete="off" onChange={onSaleRefChange} {...invalid("saleRef")} />
+          {props.canBookDeposits && <p className="hint" style={{ margin: "0.15rem 0 0" }}>Scan the receipt: Enter looks the sale up, Enter again saves.</p>}
+          {errorText("saleRef")}
         </div>
+        {props.canBookDeposits && depositCheck && (
+          <DepositPanel check={depositCheck} action={depositAction} onAction={setDepositAction} actionIssue={issueFor("action")} />
+        )}
         <fieldset className="wide">
           <legend>Condition</legend>
           <div className="choice-row">
@@ -233,6 +309,11 @@ export function CounterForm(props: {
               {message.text}
             </p>
           )}
+          {depositResult && (
+            <p className={depositResult.isBooked ? "notice" : "error-box"} role="status" data-testid="deposit-result">
+              {depositResult.text}
+            </p>
+          )}
         </div>
       </form>
       <section aria-label="This site now">
@@ -272,6 +353,69 @@ export function CounterForm(props: {
           </tbody>
         </table>
       </section>
+    </div>
+  );
+}
+
+/** The refund check of a returned battery: the verdict with its reason, what the rule allows, the citation and the caution. */
+function DepositPanel({ check, action, onAction, actionIssue }: { check: TDepositCheck; action: string; onAction: (kind: string) => void; actionIssue?: string }) {
+  const found = check.check;
+  return (
+    <div className="wide card" role="region" aria-label="Deposit check" data-testid="deposit-check">
+      {check.status === "loading" && <p className="muted" style={{ margin: 0 }}>Looking up sale {check.saleRef}…</p>}
+      {check.status === "missing" && (
+        <p className="error-box" style={{ margin: 0 }}>
+          {check.message ?? `No sale ${check.saleRef} at this store.`} Saving logs the unit with this reference, without a deposit entry.
+        </p>
+      )}
+      {check.status === "error" && (
+        <p className="error-box" style={{ margin: 0 }}>
+          {check.message} Saving logs the unit without a deposit entry.
+        </p>
+      )}
+      {check.status === "found" && found && (
+        <>
+          <p style={{ margin: "0 0 0.4rem" }}>
+            <span className={`status ${found.due.isInsideWindow ? "ok" : "exceeded"}`}>
+              {found.due.isInsideWindow ? "✓ Inside the window" : "✕ Window passed"}
+            </span>{" "}
+            <strong data-testid="refund-due">{found.due.refundCents > 0 ? `Refund due: ${dollars(found.due.refundCents)}` : "No refund due"}</strong>{" "}
+            <span className="small muted">
+              sale {found.sale.saleRef}, {found.sale.product}, sold {found.sale.soldOn}; day {found.due.daysSinceSale} of {found.due.windowDays}
+            </span>
+          </p>
+          <p className="small" style={{ margin: "0 0 0.4rem" }}>
+            {found.due.reason}
+          </p>
+          {found.equivalentSize && (
+            <p className="small" style={{ margin: "0 0 0.4rem" }}>
+              {found.equivalentSize.isEquivalent === false ? "⚠ " : ""}
+              {found.equivalentSize.text}
+            </p>
+          )}
+          <fieldset>
+            <legend>What to do with the deposit</legend>
+            <div className="choice-row">
+              {found.options.map((o) => (
+                <label key={o.kind}>
+                  <input type="radio" name="depositAction" value={o.kind} checked={action === o.kind} onChange={() => onAction(o.kind)} />
+                  {ACTION_LABELS[o.kind] ?? o.kind}
+                </label>
+              ))}
+            </div>
+            <p className="small" style={{ margin: "0.3rem 0 0" }}>
+              {found.options.find((o) => o.kind === action)?.text}
+            </p>
+            {actionIssue && <p className="field-error">{actionIssue}</p>}
+          </fieldset>
+          <p className="small muted" style={{ margin: "0.4rem 0" }}>
+            {found.rule.title}: {found.rule.citation}
+          </p>
+          <p className="caution small" style={{ margin: 0 }}>
+            {found.caution}
+          </p>
+        </>
+      )}
     </div>
   );
 }

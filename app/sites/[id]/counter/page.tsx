@@ -7,6 +7,7 @@ import { listUnits } from "@/lib/db/units";
 import { KINDS } from "@/lib/chemistry";
 import { CONDITIONS, SOURCES } from "@/lib/intake/schema";
 import { HANDLING_CAUTION } from "@/lib/cautions";
+import { can } from "@/lib/auth/permissions";
 import { CounterForm } from "./counter-form";
 
 export const metadata: Metadata = { title: "Counter" };
@@ -36,6 +37,7 @@ export default async function CounterPage({ params }: { params: Promise<{ id: st
         sources={SOURCES.map((s) => ({ id: s.id, label: s.label }))}
         closedContainers={closedContainers}
         handling={HANDLING_CAUTION}
+        canBookDeposits={can(actor, "deposits.write", site.id)}
         initialTotals={pickTotals(site)}
         initialLatest={latest.map((u) => ({
           id: u.id,
