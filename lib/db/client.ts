@@ -38,15 +38,17 @@ export function createDb(url: string = process.env.DATABASE_URL || DEFAULT_DATAB
   // connection is shared (under a lock) with the raw hot paths in lib/db/fast-intake.ts.
   const shared = sharedSqliteConnection(new PrismaBetterSqlite3({ url: `file:${file}` }), (adapter) => adapter.executeScript(SQLITE_PRAGMAS));
   const client = new SqlitePrismaClient({ adapter: shared.factory });
-  sqliteConnections.set(client, shared.connection);
+  // Kept on the client itself, not in a module-level map: Next bundles this module into several chunks, and
+  // the cached client (globalThis) must find its connection from any of them.
+  Object.defineProperty(client, SQLITE_CONNECTION, { value: shared.connection });
   return client;
 }
 
-const sqliteConnections = new WeakMap<TDb, () => Promise<TSqliteConnection>>();
+const SQLITE_CONNECTION = Symbol.for("leadger.sqliteConnection");
 
 /** The SQLite connection under a client, opened if need be; undefined for PostgreSQL. */
 export async function sqliteConnection(client: TDb): Promise<TSqliteConnection | undefined> {
-  const connection = sqliteConnections.get(client);
+  const connection = (client as unknown as Record<symbol, (() => Promise<TSqliteConnection>) | undefined>)[SQLITE_CONNECTION];
   if (!connection) return undefined;
   await client.$connect();
   return connection();
