@@ -471,3 +471,16 @@ describe("receiving facilities and carriers (Setup)", () => {
     expect(JSON.parse(event.before!)).toEqual({ emergencyPhone: null });
   });
 });
+
+describe("GET /api/v1/openapi.json", () => {
+  test("describes the loads, papers and setup routes from the same zod schemas", async () => {
+    const { GET } = await import("@/app/api/v1/openapi.json/route");
+    const doc = await GET().json();
+    expect(Object.keys(doc.paths)).toEqual(
+      expect.arrayContaining(["/api/v1/loads", "/api/v1/loads/{id}", "/api/v1/loads/{id}/containers", "/api/v1/loads/{id}/manifest.pdf", "/api/v1/records", "/api/v1/records/documents/{id}", "/api/v1/facilities", "/api/v1/carriers"]),
+    );
+    expect(doc.components.schemas.Receipt.required).toEqual(["receivedAt"]);
+    expect(doc.components.schemas.LoadCreate.required).toEqual(expect.arrayContaining(["site", "facilityId"]));
+    expect(doc.paths["/api/v1/records"].get.parameters.map((p: { name: string }) => p.name)).toEqual(expect.arrayContaining(["site", "from", "to", "format"]));
+  });
+});
