@@ -1,19 +1,13 @@
 import { withActor, parse, queryOf, toErrorResponse } from "@/lib/http/handle";
 import { assertCanImportSales, importSales, ZSalesImportQuery, type TImportProgress, type TSalesImportResult } from "@/lib/db/sales-import";
 import { AppError } from "@/lib/errors";
+import { FOREIGN_ORIGIN_MESSAGE, isAllowedOrigin } from "@/lib/http/same-origin";
 
 const NDJSON = "application/x-ndjson";
 
-/**
- * The same-origin rule of proxy.ts, kept here too: this route should be left out of the proxy's matcher,
- * because Next buffers (and past 10 MB cuts) the body of every request the proxy sees.
- */
+/** This route is left out of proxy.ts (it streams its body), so it applies the same CSRF rule itself. */
 function assertSameOrigin(request: Request): void {
-  if (!request.headers.get("cookie")) return;
-  const origin = request.headers.get("origin");
-  const host = request.headers.get("host");
-  if (origin && host && new URL(origin).host === host) return;
-  throw new AppError("forbidden", "This request did not come from a Leadger page (Origin missing or foreign).");
+  if (!isAllowedOrigin(request)) throw new AppError("forbidden", FOREIGN_ORIGIN_MESSAGE);
 }
 
 function outcome(result: TSalesImportResult): { status: number; body: unknown } {
