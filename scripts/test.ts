@@ -29,3 +29,7 @@ if (!only || only === "e2e") {
   buildIfNeeded();
   stage("Browser journeys", "npx", ["playwright", "test"], { CHROMIUM_PATH: chromium });
 }
+if (!only || only === "security") {
+  buildIfNeeded();
+  stage("Security checks against the running server", "npx", ["vitest", "run", "--config", "test/security/vitest.config.ts"]);
+}

@@ -133,9 +133,18 @@ export async function startApp({ port, url, dataDir, secret }: { port: number; u
   child.stderr!.on("data", (chunk: Buffer) => {
     stderr = (stderr + chunk.toString()).slice(-4000);
   });
+  let isEndExpected = false;
   const exited = new Promise<string>((resolve) => child.on("exit", (code, signal) => resolve(signal ?? `exit ${code}`)));
+  void exited.then((how) => {
+    // Said at once, so that a failed check later can be traced to an instance that went away.
+    if (!isEndExpected) console.error(`\n!!! the app on port ${port} (pid ${child.pid}) ended unexpectedly: ${how}${stderr ? `\n${stderr}` : ""}`);
+  });
   await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`the app on port ${port} did not start within 60 s\n${stderr}`)), 60_000);
+    const timer = setTimeout(() => {
+      isEndExpected = true;
+      child.kill("SIGKILL");
+      reject(new Error(`the app on port ${port} did not start within 60 s\n${stderr}`));
+    }, 60_000);
     child.stdout!.on("data", (chunk: Buffer) => {
       if (chunk.toString().includes("listening")) {
         clearTimeout(timer);
@@ -144,6 +153,7 @@ export async function startApp({ port, url, dataDir, secret }: { port: number; u
     });
     void exited.then((how) => {
       clearTimeout(timer);
+      isEndExpected = true;
       reject(new Error(`the app on port ${port} ended before listening (${how})\n${stderr}`));
     });
   });
@@ -153,8 +163,12 @@ export async function startApp({ port, url, dataDir, secret }: { port: number; u
     baseUrl: `http://127.0.0.1:${port}`,
     pid: child.pid!,
     exited,
-    kill: (signal) => void child.kill(signal),
+    kill: (signal) => {
+      isEndExpected = true;
+      child.kill(signal);
+    },
     stop: async () => {
+      isEndExpected = true;
       if (child.exitCode !== null || child.signalCode !== null) return;
       child.kill("SIGTERM");
       const timer = setTimeout(() => child.kill("SIGKILL"), 10_000);
