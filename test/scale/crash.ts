@@ -21,6 +21,7 @@ import {
   createDb,
   eachLimited,
   intakeBody,
+  killAllApps,
   ledgerChecks,
   makeIntakeSite,
   newAuthSecret,
@@ -159,6 +160,7 @@ async function main(): Promise<number> {
   buildIfNeeded();
   const watchdog = setTimeout(() => {
     console.error(`\ntest:crash FAILED: not finished within ${2 * MAX_SECONDS} s per database`);
+    killAllApps();
     process.exit(1);
   }, providers.length * 2 * MAX_SECONDS * 1000);
   const results: [string, boolean][] = [];

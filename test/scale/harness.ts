@@ -108,6 +108,13 @@ export type TApp = {
   stop(): Promise<void>;
 };
 
+const liveApps = new Set<TApp>();
+
+/** SIGKILLs every instance still running (for a watchdog about to exit the process). */
+export function killAllApps(): void {
+  for (const app of liveApps) app.kill("SIGKILL");
+}
+
 /**
  * One instance of the built app (scripts/serve.ts, production mode) on `port`, started as
  * `node --import tsx scripts/serve.ts` so the PID held is the server's own. Resolves once it listens.
@@ -158,7 +165,7 @@ export async function startApp({ port, url, dataDir, secret }: { port: number; u
     });
   });
   child.stdout!.resume();
-  return {
+  const app: TApp = {
     port,
     baseUrl: `http://127.0.0.1:${port}`,
     pid: child.pid!,
@@ -176,6 +183,9 @@ export async function startApp({ port, url, dataDir, secret }: { port: number; u
       clearTimeout(timer);
     },
   };
+  liveApps.add(app);
+  void exited.then(() => liveApps.delete(app));
+  return app;
 }
 
 export const newAuthSecret = () => randomUUID() + randomUUID();

@@ -24,6 +24,7 @@ import {
   eachLimited,
   intakeBody,
   intakeHeaders,
+  killAllApps,
   ledgerChecks,
   makeIntakeSite,
   newAuthSecret,
@@ -113,7 +114,7 @@ async function main(): Promise<number> {
   const apps: TApp[] = [];
   const watchdog = setTimeout(() => {
     console.error(`\ntest:scale FAILED: not finished within ${MAX_SECONDS} s`);
-    for (const app of apps) app.kill("SIGKILL");
+    killAllApps();
     process.exit(1);
   }, MAX_SECONDS * 1000);
   try {
