@@ -12,11 +12,7 @@ export const RAW_UNIT_INSERT = `INSERT INTO "Unit" ("id","siteId","kind","nomina
 export const RAW_TOTALS_UPDATE = `UPDATE "Site" SET "unitCount" = "unitCount" + 1, "batteryKg" = "batteryKg" + 18, "leadKg" = "leadKg" + 11.5,
  "electrolyteKg" = "electrolyteKg" + 4.3, "acidKg" = "acidKg" + 1.6 WHERE "id" = ?`;
 
-/** Positional `?` to PostgreSQL's `$n`. */
-export const toPg = (sql: string) => {
-  let n = 0;
-  return sql.replace(/\?/g, () => `$${++n}`);
-};
+export { toPg } from "@/lib/db/fast-intake";
 
 /** Arguments of RAW_UNIT_INSERT; `time` formats the timestamp as the provider's rows hold it. */
 export const rawUnitArgs = (siteId: string, time: (d: Date) => string, at = new Date()) => [randomUUID(), siteId, time(at)];

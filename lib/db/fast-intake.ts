@@ -65,7 +65,7 @@ const SQL = {
 };
 
 /** Positional `?` to PostgreSQL's `$n`. */
-const toPg = (sql: string) => {
+export const toPg = (sql: string) => {
   let n = 0;
   return sql.replace(/\?/g, () => `$${++n}`);
 };
