@@ -1,4 +1,5 @@
 import { db } from "@/lib/db/client";
+import { rawRow } from "@/lib/db/raw";
 import { AppError } from "@/lib/errors";
 import { auth } from "./auth";
 import { hashApiKey } from "./api-keys";
@@ -22,12 +23,18 @@ export async function resolveActor(headers: Headers): Promise<TActor | null> {
   return { kind: "user", id: user.id, ref: `user:${user.id}`, label: user.name || user.email, organisationId: user.organisationId, roles };
 }
 
+type TKeyRow = { id: string; organisationId: string; siteId: string; role: string; name: string; lastUsedAt: Date | string | null; revoked: unknown };
+
+// Every API request looks its key up, so this one read is plain SQL (lib/db/raw.ts) rather than a Prisma query.
+const KEY_LOOKUP = `SELECT "id", "organisationId", "siteId", "role", "name", "lastUsedAt", "revokedAt" IS NOT NULL AS "revoked" FROM "ApiKey" WHERE "hash" = ?`;
+
 async function actorFromKey(key: string): Promise<TActor | null> {
-  const row = await db().apiKey.findUnique({ where: { hash: hashApiKey(key) } });
-  if (!row || row.revokedAt || !isRole(row.role)) return null;
+  const row = await rawRow<TKeyRow>(db(), KEY_LOOKUP, [hashApiKey(key)]);
+  if (!row || row.revoked === true || row.revoked === 1 || !isRole(row.role)) return null;
   const now = new Date();
+  const lastUsed = row.lastUsedAt === null ? null : new Date(row.lastUsedAt); // SQLite gives the stored text
   // Recording every use would add a write to each request; once a minute is enough to show "last used".
-  if (!row.lastUsedAt || now.getTime() - row.lastUsedAt.getTime() > KEY_TOUCH_MS) {
+  if (!lastUsed || now.getTime() - lastUsed.getTime() > KEY_TOUCH_MS) {
     await db().apiKey.update({ where: { id: row.id }, data: { lastUsedAt: now } });
   }
   return {
