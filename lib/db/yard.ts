@@ -127,6 +127,7 @@ export async function updateContainer(actor: TActor, containerId: string, patch:
       if (patch.bayId) await tx.bay.update({ where: { id: patch.bayId }, data: incrementBy(totals) });
       data.bayId = patch.bayId;
     }
+    if (Object.keys(data).length === 0) return before; // nothing to change: no write, no trail event
     // Guarded on the state read above: a concurrent seal or load makes this one fail instead of overwriting it.
     const { count } = await tx.container.updateMany({ where: { id: before.id, state: before.state }, data });
     if (count !== 1) throw new AppError("conflict", "The container changed meanwhile; reload and try again.");
@@ -170,6 +171,8 @@ const lotItem = (l: { id: string; containerId: string | null; receivedAt: Date; 
 
 const UNIT_COLUMNS = { id: true, siteId: true, containerId: true, receivedAt: true, state: true, condition: true, batteryKg: true, leadKg: true, electrolyteKg: true, acidKg: true } as const;
 
+const UNIT_ID_PREFIX = /^[0-9a-f-]{8,}$/i;
+
 /** A scanned code at a site: a unit id (or its first 8+ characters), a container label, or a scale ticket number. */
 async function resolveScan(tx: TTx, siteId: string, code: string, targetId: string): Promise<{ items: TItem[]; field: string; fromContainerId?: string }> {
   const unit = await tx.unit.findUnique({ where: { id: code }, select: UNIT_COLUMNS });
@@ -183,7 +186,9 @@ async function resolveScan(tx: TTx, siteId: string, code: string, targetId: stri
   }
   const lot = await tx.lot.findUnique({ where: { siteId_ticketNumber: { siteId, ticketNumber: code } } });
   if (lot) return { items: [lotItem(lot)], field: "scan" };
-  if (code.length >= 8) {
+  // Only something shaped like the start of a unit id (hex digits and dashes) is looked up as a prefix, so a code
+  // holding LIKE's wildcards (% or _) can never match more than it says.
+  if (UNIT_ID_PREFIX.test(code)) {
     // Unit ids are lower case; PostgreSQL's LIKE is case-sensitive where SQLite's is not.
     const matches = await tx.unit.findMany({ where: { siteId, id: { startsWith: code.toLowerCase() } }, select: UNIT_COLUMNS, take: 2 });
     if (matches.length === 1) return { items: [unitItem(matches[0]!)], field: "scan" };

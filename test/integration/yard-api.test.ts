@@ -164,6 +164,17 @@ describe("stowing and moving by scan", () => {
     const second = await intake(key, site.id);
     expect((await post(key, pallet.id, { scan: second.id.slice(0, 8) })).status).toBe(200);
     expect((await db.container.findUniqueOrThrow({ where: { id: pallet.id } })).unitCount).toBe(2);
+    // A scanner that sends upper case finds it too (ids are stored lower case).
+    const third = await intake(key, site.id);
+    expect((await post(key, pallet.id, { scan: third.id.slice(0, 8).toUpperCase() })).status).toBe(200);
+    // LIKE's wildcards are not a prefix: "%%%%%%%%" must not match whichever unit comes first.
+    const fourth = await intake(key, site.id);
+    const wild = await post(key, pallet.id, { scan: "%%%%%%%%" });
+    expect(wild.status).toBe(400);
+    expect((await wild.json()).error.issues[0].field).toBe("scan");
+    expect(await post(key, pallet.id, { scan: `${fourth.id.slice(0, 7)}_` }).then((r) => r.status)).toBe(400);
+    expect((await db.unit.findUniqueOrThrow({ where: { id: fourth.id } })).containerId).toBeNull();
+    expect((await db.container.findUniqueOrThrow({ where: { id: pallet.id } })).unitCount).toBe(3);
   });
 
   test("accumulation start on a move: the earlier of the two containers' dates; an emptied container loses its date", async () => {
@@ -290,6 +301,12 @@ describe("sealing and bays", () => {
     expect([a.unitCount, b.unitCount]).toEqual([0, 1]);
     expect(b.batteryKg).toBeCloseTo(unit.batteryKg, 9);
     expect(Math.abs(a.batteryKg)).toBeLessThan(1e-9);
+    // Sending the bay it is already in changes nothing: 200 with the container as it is, and no trail event.
+    const trailBefore = await db.trailEvent.count({ where: { entityId: pallet.id } });
+    const same = await container.PATCH(apiRequest(`/api/v1/containers/${pallet.id}`, { method: "PATCH", key, body: { bayId: bayB.id } }), params({ id: pallet.id }));
+    expect(same.status).toBe(200);
+    expect((await same.json()).container.bayId).toBe(bayB.id);
+    expect(await db.trailEvent.count({ where: { entityId: pallet.id } })).toBe(trailBefore);
   });
 
   test("a clerk cannot seal (403)", async () => {
