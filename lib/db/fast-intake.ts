@@ -1,13 +1,12 @@
 import { randomUUID } from "node:crypto";
-import type Database from "better-sqlite3";
-import pg from "pg";
-import { DEFAULT_DATABASE_URL, databaseProvider, pgConfig } from "./migrate/database-url";
+import { databaseProvider } from "./migrate/database-url";
 import { sqliteConnection, type TDb } from "./client";
-import type { TTotals } from "./totals";
+import { databaseUrl, pgPool, prepared, toPg } from "./raw";
+import { pickTotals, type TTotals } from "./totals";
 
 /**
- * The intake hot path in plain SQL: insert the unit, move the site's totals, append the level change, the trail
- * event and the idempotency record — one transaction, a handful of prepared statements. Prisma's query layer
+ * The intake hot path in plain SQL: insert the unit, append the level change and the trail event, move the
+ * site's totals, store the idempotency record — one transaction, a handful of prepared statements. Prisma's query layer
  * costs a few tenths of a millisecond per statement, which at five writes per intake was most of the request
  * (measured: test/bench/intake.bench.ts); everything else still goes through Prisma. SQLite and PostgreSQL
  * twins of each statement are kept side by side, and the integration suite runs on both.
@@ -28,6 +27,8 @@ export type TUnitRow = {
   state: string;
   saleRef: string | null;
   note: string | null;
+  senderName: string | null;
+  senderAddress: string | null;
   receivedAt: Date;
   receivedBy: string;
   method: string;
@@ -49,7 +50,7 @@ export type TUnitRow = {
 
 const UNIT_COLUMNS = [
   "id", "siteId", "containerId", "kind", "nominalVoltage", "capacityAh", "cca", "groupSize", "weightKg", "condition", "source", "state",
-  "saleRef", "note", "receivedAt", "receivedBy", "method", "batteryKg", "batteryKgLow", "batteryKgHigh", "leadKg", "leadKgLow", "leadKgHigh",
+  "saleRef", "note", "senderName", "senderAddress", "receivedAt", "receivedBy", "method", "batteryKg", "batteryKgLow", "batteryKgHigh", "leadKg", "leadKgLow", "leadKgHigh",
   "electrolyteKg", "electrolyteKgLow", "electrolyteKgHigh", "acidKg", "acidKgLow", "acidKgHigh", "polymerKg", "otherKg",
 ] as const satisfies readonly (keyof TUnitRow)[];
 
@@ -64,11 +65,7 @@ const SQL = {
   idempotency: `INSERT INTO "IdempotencyKey" ("id", "scope", "key", "status", "body", "createdAt") VALUES (${marks(6)})`,
 };
 
-/** Positional `?` to PostgreSQL's `$n`. */
-export const toPg = (sql: string) => {
-  let n = 0;
-  return sql.replace(/\?/g, () => `$${++n}`);
-};
+export { toPg };
 
 /** Timestamps exactly as Prisma writes them, so Prisma's range filters see raw rows the same way. */
 export const sqliteTime = (d: Date) => d.toISOString().replace("Z", "+00:00");
@@ -79,9 +76,14 @@ export type TFastIntake = {
   delta: TTotals;
   trail: { organisationId: string; actor: string; actorLabel: string };
   idempotency?: { scope: string; key: string };
-  /** The response body, given the site's totals after this unit; stored with the idempotency key. */
-  bodyOf: (siteTotals: TTotals) => object;
+  /**
+   * The response body without its last field, `siteTotals` (the site's totals after this unit), which is added
+   * here; the whole body is stored with the idempotency key.
+   */
+  body: Record<string, unknown>;
 };
+
+const withTotals = (body: Record<string, unknown>, siteTotals: TTotals) => ({ ...body, siteTotals: pickTotals(siteTotals) });
 
 /** A used idempotency key, reported the way Prisma reports a unique violation. */
 const duplicateKey = () => Object.assign(new Error("idempotency key already used"), { code: "P2002" });
@@ -97,35 +99,26 @@ function sideArgs(input: TFastIntake, time: (d: Date) => string) {
     level: [randomUUID(), unit.siteId, time(unit.receivedAt), "intake", unit.id, delta.unitCount, delta.batteryKg, delta.leadKg, delta.electrolyteKg, delta.acidKg],
     trail: [randomUUID(), trail.organisationId, unit.siteId, time(unit.receivedAt), trail.actor, trail.actorLabel, "unit.received", "unit", unit.id, null, JSON.stringify(unit)],
     idempotency: (body: object) => [randomUUID(), input.idempotency!.scope, input.idempotency!.key, 201, JSON.stringify(body), time(unit.receivedAt)],
+    /** PostgreSQL builds the stored body itself: this text, then the totals as JSON, then the closing brace. */
+    idempotencyHead: () => [randomUUID(), input.idempotency!.scope, input.idempotency!.key, `${JSON.stringify(input.body).slice(0, -1)},"siteTotals":`, time(unit.receivedAt)],
   };
-}
-
-type TStatements = Record<keyof typeof SQL, Database.Statement>;
-const prepared = new WeakMap<Database.Database, TStatements>();
-
-function statementsFor(database: Database.Database): TStatements {
-  let s = prepared.get(database);
-  if (!s) {
-    s = Object.fromEntries(Object.entries(SQL).map(([k, sql]) => [k, database.prepare(sql).safeIntegers(false)])) as TStatements;
-    prepared.set(database, s);
-  }
-  return s;
 }
 
 async function sqliteIntake(client: TDb, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
   const connection = (await sqliteConnection(client))!;
-  const s = statementsFor(connection.database);
+  const database = connection.database;
+  const statement = (name: keyof typeof SQL) => prepared(database, SQL[name]);
   const args = sideArgs(input, sqliteTime);
   const release = await connection.lock.acquire();
   try {
-    return connection.database.transaction(() => {
-      s.unit.run(...unitArgs(input.unit, sqliteTime));
-      const siteTotals = s.site.get(...args.site) as TTotals | undefined;
+    return database.transaction(() => {
+      statement("unit").run(...unitArgs(input.unit, sqliteTime));
+      statement("level").run(...args.level);
+      statement("trail").run(...args.trail);
+      const siteTotals = statement("site").get(...args.site) as TTotals | undefined;
       if (!siteTotals) throw new Error(`site ${input.unit.siteId} vanished during intake`);
-      s.level.run(...args.level);
-      s.trail.run(...args.trail);
-      const body = input.bodyOf(siteTotals);
-      if (input.idempotency) s.idempotency.run(...args.idempotency(body));
+      const body = withTotals(input.body, siteTotals);
+      if (input.idempotency) statement("idempotency").run(...args.idempotency(body));
       return { siteTotals, body };
     })();
   } catch (error) {
@@ -136,39 +129,38 @@ async function sqliteIntake(client: TDb, input: TFastIntake): Promise<{ siteTota
   }
 }
 
-const pools = new Map<string, pg.Pool>();
-const PG_SQL = Object.fromEntries(Object.entries(SQL).map(([k, sql]) => [k, toPg(sql)])) as Record<keyof typeof SQL, string>;
+/**
+ * On PostgreSQL the whole intake is one statement — every round trip to the server costs more than the SQL it
+ * carries. Data-modifying WITH clauses all run, exactly once, in the statement's own transaction, so the five
+ * writes still commit or fail together; the site's row is locked only from its update to the commit. The stored
+ * idempotency body is completed in SQL with the totals the update returns.
+ */
+const PG_TOTALS_JSON = `(SELECT json_build_object('unitCount', "unitCount", 'batteryKg', "batteryKg", 'leadKg', "leadKg", 'electrolyteKg', "electrolyteKg", 'acidKg', "acidKg")::text FROM "s")`;
+const pgIntakeSql = (withKey: boolean) =>
+  toPg(`WITH "u" AS (${SQL.unit}), "l" AS (${SQL.level}), "t" AS (${SQL.trail}), "s" AS (${SQL.site})${
+    withKey
+      ? `, "k" AS (INSERT INTO "IdempotencyKey" ("id", "scope", "key", "status", "body", "createdAt") VALUES (?, ?, ?, 201, ? || ${PG_TOTALS_JSON} || '}', ?))`
+      : ""
+  } SELECT "unitCount", "batteryKg", "leadKg", "electrolyteKg", "acidKg" FROM "s"`);
+const PG_INTAKE = { withKey: pgIntakeSql(true), withoutKey: pgIntakeSql(false) };
 
 async function postgresIntake(url: string, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
-  let pool = pools.get(url);
-  if (!pool) {
-    pool = new pg.Pool({ ...pgConfig(url), max: 10 });
-    pools.set(url, pool);
-  }
   const args = sideArgs(input, pgTime);
-  const connection = await pool.connect();
+  const values = [...unitArgs(input.unit, pgTime), ...args.level, ...args.trail, ...args.site, ...(input.idempotency ? args.idempotencyHead() : [])];
+  // Named, so each pooled connection parses and plans it once.
+  const query = input.idempotency ? { name: "leadger-intake-key", text: PG_INTAKE.withKey } : { name: "leadger-intake", text: PG_INTAKE.withoutKey };
   try {
-    await connection.query("BEGIN");
-    await connection.query(PG_SQL.unit, unitArgs(input.unit, pgTime));
-    const { rows } = await connection.query<TTotals>(PG_SQL.site, args.site);
+    const { rows } = await pgPool(url).query<TTotals>({ ...query, values });
     if (!rows[0]) throw new Error(`site ${input.unit.siteId} vanished during intake`);
-    await connection.query(PG_SQL.level, args.level);
-    await connection.query(PG_SQL.trail, args.trail);
-    const body = input.bodyOf(rows[0]);
-    if (input.idempotency) await connection.query(PG_SQL.idempotency, args.idempotency(body));
-    await connection.query("COMMIT");
-    return { siteTotals: rows[0], body };
+    return { siteTotals: rows[0], body: withTotals(input.body, rows[0]) };
   } catch (error) {
-    await connection.query("ROLLBACK").catch(() => undefined);
     if ((error as { code?: string }).code === "23505") throw duplicateKey();
     throw error;
-  } finally {
-    connection.release();
   }
 }
 
 /** Runs one intake on the process's database (db()'s URL). */
 export function fastIntake(client: TDb, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
-  const url = process.env.DATABASE_URL || DEFAULT_DATABASE_URL;
+  const url = databaseUrl();
   return databaseProvider(url) === "postgresql" ? postgresIntake(url, input) : sqliteIntake(client, input);
 }

@@ -53,6 +53,8 @@ export async function receiveLot(actor: TActor, input: TLotCreate, { at }: { at?
             siteId: site.id,
             containerId: container?.id ?? null,
             ticketNumber: input.ticketNumber,
+            senderName: input.senderName ?? null,
+            senderAddress: input.senderAddress ?? null,
             grossKg: input.grossKg,
             tareKg: input.tareKg,
             netKg,

@@ -217,14 +217,34 @@ export const ZRecordsQuery = z
   });
 export type TRecordsQuery = z.output<typeof ZRecordsQuery>;
 
-/** What the records say about where units came from: the intake records keep the source, not the sending handler. */
-const ORIGIN_OF: Record<string, string> = {
-  "core-return": "Core returns across the counter",
+/**
+ * Where units came from when no sender was recorded with them. A core return across the counter without one is
+ * taken to come from a member of the public, who needs no sender line: a household is not a universal waste
+ * handler (the project's reading, from memory of 40 CFR 273.8 and 273.9; not in REFERENCES.md). Every other row
+ * without a sender says so plainly.
+ */
+export const NO_SENDER_ORIGIN: Record<string, string> = {
+  "core-return": "Core returns across the counter (members of the public: no sender, the project's reading)",
   "drop-off": "Drop-offs (sender not recorded)",
   fleet: "Fleet returns (sender not recorded)",
   "purchased-scrap": "Purchased scrap (sender not recorded)",
 };
+export const LOT_NO_SENDER = "Weighed lot (sender not recorded)";
+/** Printed with the name of a sender whose address was not given. */
+export const ADDRESS_NOT_RECORDED = "(address not recorded)";
 const SOURCE_LABEL = new Map<string, string>(SOURCES.map((s) => [s.id, s.label]));
+
+/** Said under the shipments received when a row has no sender; the caution of DESIGN.md §6 is in every page's footer too. */
+export const RECORDS_NOTES = {
+  household:
+    "Core returns without a sender came across the counter from members of the public. The project reads 40 CFR 273.39 as asking for the sender of a shipment from a handler, and a household is not one, so no sender is listed for them. " +
+    "This is the project's reading, not a ruling: state rules may ask for more; confirm it with the authority having jurisdiction.",
+  notRecorded:
+    "Rows marked \"sender not recorded\" were logged without the name and address of the one who sent them, which 40 CFR 273.39 asks for each shipment received: complete them from the scale tickets or delivery papers, and give the sender when logging the next ones.",
+} as const;
+
+const origin = (name: string | null, address: string | null, fallback: string): TParty =>
+  name ? { name, address: address ?? ADDRESS_NOT_RECORDED, regulatoryIds: "" } : { name: fallback, address: "", regulatoryIds: "" };
 
 const typeOf = (u: { kind: string; isNonSpillable: boolean }) => `lead-acid batteries, ${u.kind} (${u.isNonSpillable ? "UN2800" : "UN2794"})`;
 
@@ -242,9 +262,9 @@ function quantities(units: TLoadUnit[]) {
 
 /**
  * The shipment records of a site for a period with the fields of 40 CFR 273.39: each shipment received
- * (origin, quantity by type, date received) and each shipment sent (destination name and address, quantity by
- * type, date it left). Units logged at the site are grouped per day and source; each weighed lot is a shipment
- * of its own; each load that left is a shipment sent.
+ * (origin name and address, quantity by type, date received) and each shipment sent (destination name and
+ * address, quantity by type, date it left). Units logged at the site are grouped per day, source and sender; each
+ * weighed lot is a shipment of its own; each load that left is a shipment sent.
  */
 export async function shipmentRecordsContent(actor: TActor, { site: siteId, from, to }: Pick<TRecordsQuery, "site" | "from" | "to">) {
   const site = await siteFor(actor, siteId, "loads.read");
@@ -254,7 +274,7 @@ export async function shipmentRecordsContent(actor: TActor, { site: siteId, from
   const [units, lots, loads] = await Promise.all([
     db().unit.findMany({
       where: { siteId: site.id, receivedAt: { gte: start, lt: end }, state: { not: "rejected" } },
-      select: { id: true, kind: true, nominalVoltage: true, source: true, receivedAt: true, batteryKg: true },
+      select: { id: true, kind: true, nominalVoltage: true, source: true, senderName: true, senderAddress: true, receivedAt: true, batteryKg: true },
       orderBy: [{ receivedAt: "asc" }, { id: "asc" }],
     }),
     db().lot.findMany({ where: { siteId: site.id, receivedAt: { gte: start, lt: end } }, orderBy: [{ receivedAt: "asc" }, { id: "asc" }] }),
@@ -265,27 +285,32 @@ export async function shipmentRecordsContent(actor: TActor, { site: siteId, from
     }),
   ]);
 
-  const byDaySource = new Map<string, { date: string; source: string; units: TLoadUnit[] }>();
+  // One shipment received per day, source and sender: units logged one by one from the same sender that day.
+  const byDaySource = new Map<string, { date: string; source: string; senderName: string | null; senderAddress: string | null; units: TLoadUnit[] }>();
   for (const u of units) {
     const date = isoDay(u.receivedAt);
-    const key = `${date} ${u.source}`;
-    const group = byDaySource.get(key) ?? { date, source: u.source, units: [] };
+    const key = JSON.stringify([date, u.source, u.senderName, u.senderAddress]);
+    const group = byDaySource.get(key) ?? { date, source: u.source, senderName: u.senderName, senderAddress: u.senderAddress, units: [] };
     group.units.push({ ...kindLabel(u.kind, u.nominalVoltage), containerLabel: "-", count: 1, massKg: u.batteryKg, leadKg: 0 });
     byDaySource.set(key, group);
   }
   const received = [
     ...[...byDaySource.values()].map((g) => ({
       date: g.date,
-      counterpart: { name: ORIGIN_OF[g.source] ?? `${SOURCE_LABEL.get(g.source) ?? g.source} (sender not recorded)`, address: "", regulatoryIds: "" },
+      counterpart: origin(g.senderName, g.senderAddress, NO_SENDER_ORIGIN[g.source] ?? `${SOURCE_LABEL.get(g.source) ?? g.source} (sender not recorded)`),
       quantities: quantities(g.units),
       reference: `units logged (${SOURCE_LABEL.get(g.source) ?? g.source})`,
     })),
     ...lots.map((l) => ({
       date: isoDay(l.receivedAt),
-      counterpart: { name: "Weighed lot (sender not recorded)", address: "", regulatoryIds: "" },
+      counterpart: origin(l.senderName, l.senderAddress, LOT_NO_SENDER),
       quantities: quantities(lotEntries(l, "-")),
       reference: `scale ticket ${l.ticketNumber}`,
     })),
+  ];
+  const notes = [
+    ...(units.some((u) => u.source === "core-return" && !u.senderName) ? [RECORDS_NOTES.household] : []),
+    ...(units.some((u) => u.source !== "core-return" && !u.senderName) || lots.some((l) => !l.senderName) ? [RECORDS_NOTES.notRecorded] : []),
   ];
   const sent = [];
   for (const load of loads) {
@@ -305,17 +330,18 @@ export async function shipmentRecordsContent(actor: TActor, { site: siteId, from
     to,
     received,
     sent,
+    ...(notes.length ? { notes } : {}),
   };
   return { site, content };
 }
 
-export type TShipmentRecords = { rows: TShipmentRecordRow[]; csv: string; from: string; to: string };
+export type TShipmentRecords = { rows: TShipmentRecordRow[]; notes: string[]; csv: string; from: string; to: string };
 
 /** The records as rows and CSV (not an issued paper: the CSV is an export of the records as they stand). */
 export async function shipmentRecords(actor: TActor, query: Pick<TRecordsQuery, "site" | "from" | "to">): Promise<TShipmentRecords> {
   const { content } = await shipmentRecordsContent(actor, query);
   const input = { ...content, issuedAt: new Date().toISOString() };
-  return { rows: shipmentRecordRows(input), csv: shipmentRecordsCsv(input), from: query.from, to: query.to };
+  return { rows: shipmentRecordRows(input), notes: content.notes ?? [], csv: shipmentRecordsCsv(input), from: query.from, to: query.to };
 }
 
 /** The records as an issued paper (PDF), stored with its snapshot like every other paper. */

@@ -77,7 +77,7 @@ export async function seedDemo({ unitsPerStore = 120, unitsAtYard = 160 } = {}):
         condition: "intact",
         source: siteKey === "yard" ? pick(["fleet", "drop-off", "purchased-scrap"]) : "core-return",
       });
-      await recordIntake(actor, input, undefined, { at: new Date(now - daysAgo * 86_400_000) });
+      await recordIntake(actor, { ...input, ...DEMO_SENDERS[input.source] }, undefined, { at: new Date(now - daysAgo * 86_400_000) });
     }
   }
   await seedYardDemo(systemActor(org.id, siteIds.yard), siteIds.yard, now);
@@ -85,6 +85,18 @@ export async function seedDemo({ unitsPerStore = 120, unitsAtYard = 160 } = {}):
   await seedDepositsDemo(org.id, siteIds, now);
   return { apiKey: key, siteIds };
 }
+
+/**
+ * Invented senders for the yard's deliveries (no real company is meant): the fleet and the scrap seller are named
+ * on every unit they bring; drop-offs are left without one, as a yard often logs them, so the records show how a
+ * missing sender reads. Core returns at the stores come from members of the public and have none.
+ */
+export const DEMO_SENDERS: Partial<Record<string, { senderName: string; senderAddress: string }>> = {
+  fleet: { senderName: "Brackenridge Delivery Fleet (demo)", senderAddress: "14 Motor Pool Way\nQuarry Bend" },
+  "purchased-scrap": { senderName: "Dunmore Scrap & Salvage (demo)", senderAddress: "3 Millrace Yard\nAshgrove Flats" },
+};
+/** The invented garage that sent the demo yard's weighed lot. */
+export const DEMO_LOT_SENDER = { senderName: "Ferngate Auto Electrics (demo)", senderAddress: "88 Spindle Street\nQuarry Bend" } as const;
 
 /** The demo loader acts as the system, with admin rights at one site, and is named so in the trail. */
 function systemActor(organisationId: string, siteId: string): TActor {
@@ -117,7 +129,7 @@ async function seedYardDemo(actor: TActor, yardId: string, now: number) {
   await stowIntoContainer(actor, p3!.id, { unitIds: loose.slice(80, 110) }, at(10));
   await receiveLot(
     actor,
-    { site: yardId, ticketNumber: "QB-2026-0412", grossKg: 1_980, tareKg: 1_600, unitCount: 19, mixBasis: "count", mix: [{ kind: "flooded", nominalVoltage: 12, count: 15 }, { kind: "agm", nominalVoltage: 12, count: 4 }], containerId: p4!.id },
+    { site: yardId, ticketNumber: "QB-2026-0412", ...DEMO_LOT_SENDER, grossKg: 1_980, tareKg: 1_600, unitCount: 19, mixBasis: "count", mix: [{ kind: "flooded", nominalVoltage: 12, count: 15 }, { kind: "agm", nominalVoltage: 12, count: 4 }], containerId: p4!.id },
     at(5),
   );
   await addCustomRule(actor, yardId, { ...DEMO_YARD_RULE });

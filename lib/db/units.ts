@@ -6,7 +6,7 @@ import { needsClosedContainer, type TUnitIntake } from "@/lib/intake/schema";
 import { db, type TTx } from "./client";
 import { requireSite, siteFor } from "./sites";
 import { fastIntake } from "./fast-intake";
-import { changeSiteLevel, incrementBy, pickTotals, type TTotals } from "./totals";
+import { changeSiteLevel, incrementBy, type TTotals } from "./totals";
 import { writeTrail } from "./trail";
 
 export type TIntakeResult = { status: number; body: unknown; isReplay: boolean };
@@ -51,18 +51,31 @@ async function replay(scope: string, key: string): Promise<TIntakeResult | null>
   return row ? { status: row.status, body: JSON.parse(row.body), isReplay: true } : null;
 }
 
+export type TIntakeOptions = {
+  /** Backdates the intake (the demo loader, imports); the API always uses the current time. */
+  at?: Date;
+  /**
+   * More work that belongs to this intake (the deposit side of a return at the Counter): it runs inside the same
+   * Prisma transaction, after the unit, its totals and its trail event and before the idempotency record, and its
+   * result is merged into the response body (so it is stored with the key). A throw rolls the whole intake back.
+   */
+  within?: (tx: TTx, unit: { id: string; at: Date }) => Promise<Record<string, unknown>>;
+  /** The request an idempotency key is filed under, when it is not `POST /api/v1/units`. */
+  idempotencyScope?: string;
+};
+
 /**
  * Logs one unit: stores it with its composition, moves the site's (and container's) totals by exactly that
- * unit, writes the trail event and the idempotency record — all in one transaction.
+ * unit, writes the trail event and the idempotency record — all in one transaction, `within`'s work included.
  */
 export async function recordIntake(
   actor: TActor,
   input: TUnitIntake,
   idempotencyKey?: string,
-  { at }: { at?: Date } = {},
+  { at, within, idempotencyScope = INTAKE_SCOPE }: TIntakeOptions = {},
 ): Promise<TIntakeResult> {
   const siteId = await requireSite(actor, input.site, "units.create");
-  const scope = `${actor.ref} ${INTAKE_SCOPE}`;
+  const scope = `${actor.ref} ${idempotencyScope}`;
   const { composition, columns } = compositionColumns(input);
   const id = randomUUID();
   // `at` lets the demo loader and imports backdate an intake; the API always uses the current time.
@@ -81,40 +94,46 @@ export async function recordIntake(
     source: input.source,
     saleRef: input.saleRef ?? null,
     note: input.note ?? null,
+    senderName: input.senderName ?? null,
+    senderAddress: input.senderAddress ?? null,
     receivedAt: now,
     receivedBy: actor.ref,
     ...columns,
   };
-  const bodyOf = (unit: object, siteTotals: TTotals) => ({ unit: { ...unit, notes: composition.notes, warnings: composition.warnings }, composition, siteTotals });
+  // The response: the unit, its composition, then the site's totals after it (always last; fastIntake adds them).
+  const bodyOf = (unit: object) => ({ unit: { ...unit, notes: composition.notes, warnings: composition.warnings }, composition });
   try {
-    if (!input.containerId) {
-      // The common case goes through the raw hot path (lib/db/fast-intake.ts); a stow into a container needs the
-      // container's checks and totals, and stays on Prisma.
+    if (!input.containerId && !within) {
+      // The common case goes through the raw hot path (lib/db/fast-intake.ts); a stow into a container (its checks
+      // and totals) and an intake with work `within` its transaction stay on Prisma.
       const unit = { ...unitData, containerId: null, state: "received" };
       const { body } = await fastIntake(db(), {
         unit,
         delta,
         trail: { organisationId: actor.organisationId, actor: actor.ref, actorLabel: actor.label },
         idempotency: idempotencyKey ? { scope, key: idempotencyKey } : undefined,
-        bodyOf: (totals) => bodyOf(unit, pickTotals(totals)),
+        body: bodyOf(unit),
       });
       return { status: 201, body, isReplay: false };
     }
     return await db().$transaction(async (tx) => {
-      const container = await stowTarget(tx, siteId, input.containerId!, input.condition);
-      const unit = await tx.unit.create({ data: { ...unitData, containerId: container.id, state: "stowed" } });
-      await tx.container.update({ where: { id: container.id }, data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now } });
-      if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
+      const container = input.containerId ? await stowTarget(tx, siteId, input.containerId, input.condition) : null;
+      const unit = await tx.unit.create({ data: { ...unitData, containerId: container?.id ?? null, state: container ? "stowed" : "received" } });
+      if (container) {
+        await tx.container.update({ where: { id: container.id }, data: { ...incrementBy(delta), accumulationStart: container.accumulationStart ?? now } });
+        if (container.bayId) await tx.bay.update({ where: { id: container.bayId }, data: incrementBy(delta) });
+      }
       const totals = await changeSiteLevel(tx, { siteId, delta, reason: "intake", refId: id, at: now });
       await writeTrail(tx, actor, { siteId, action: "unit.received", entity: "unit", entityId: id, after: unit, at: now });
-      const body = bodyOf(unit, totals);
+      const body = { ...bodyOf(unit), siteTotals: totals, ...(within ? await within(tx, { id, at: now }) : {}) };
       // A used key fails here on the unique (scope, key), rolling all of this back; the catch answers with the first response.
       if (idempotencyKey) await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) }, select: { id: true } });
       return { status: 201, body, isReplay: false };
     });
   } catch (error) {
-    // A used key (a retry, or two requests at once): answer with the first response.
-    if (idempotencyKey && (error as { code?: string }).code === "P2002") {
+    // A used key (a retry, or two requests at once): answer with the first response. With `within`, the later of two
+    // requests at once can fail sooner, in that work (the first one's refund already booked): it looks too.
+    if (idempotencyKey && ((error as { code?: string }).code === "P2002" || within)) {
       const earlier = await replay(scope, idempotencyKey);
       if (earlier) return earlier;
     }

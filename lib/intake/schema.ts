@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { lbToKg } from "@/lib/units";
+import { checkSender, senderFields } from "./sender-fields";
 
 export const KIND_IDS = ["flooded", "efb", "agm", "gel", "powersport", "deep-cycle", "traction", "stationary"] as const;
 
@@ -47,8 +48,11 @@ export const ZUnitIntake = z
     containerId: z.string().min(1).optional(),
     saleRef: z.string().trim().max(60).optional().transform((v) => v || undefined),
     note: z.string().trim().max(500, "note must be at most 500 characters").optional().transform((v) => v || undefined),
+    /** Who sent it (a fleet, a business, a scrap seller); left out for a member of the public. */
+    ...senderFields,
   })
   .superRefine((v, ctx) => {
+    checkSender(v, ctx);
     if (v.weightKg !== undefined && v.weightLb !== undefined) {
       ctx.addIssue({ code: "custom", path: ["weightLb"], message: "give the weight in kg or in lb, not both" });
     }

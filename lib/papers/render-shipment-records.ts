@@ -27,6 +27,8 @@ export const ZShipmentRecordsInput = ZPaperBase.extend({
   received: z.array(ZShipment).default([]),
   sent: z.array(ZShipment).default([]),
   retentionYears: z.number().int().positive().default(3),
+  /** Said under the shipments received: why a row has no sender. Absent in records issued before it existed. */
+  notes: z.array(z.string().min(1)).default([]),
 }).refine((v) => v.from <= v.to, { path: ["to"], message: "the end of the period must not be before its start" });
 export type TShipmentRecordsInput = z.input<typeof ZShipmentRecordsInput>;
 type TShipment = z.output<typeof ZShipment>;
@@ -130,6 +132,7 @@ export async function renderShipmentRecords(input: TShipmentRecordsInput): Promi
       totals: ["Total", "", "", countText(part.reduce((s, row) => s + row.count, 0)), kgText(totalKg), lbText(totalKg), ""],
       size: 7.5,
     });
+    if (isIn) for (const note of r.notes) await w.paragraph(note, { size: 8 });
   }
   return w.finish();
 }

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { KIND_IDS } from "@/lib/chemistry/kinds";
+import { checkSender, senderFields } from "@/lib/intake/sender-fields";
 
 /** DESIGN.md §4: what a container can be. A drum or tote is usually the closed kind, but the flag decides. */
 export const CONTAINER_KINDS = ["pallet", "box", "tote", "drum"] as const;
@@ -113,8 +114,11 @@ export const ZLotCreate = z
     /** Stow the whole lot into this open container as it is received. */
     containerId: z.string().trim().min(1).optional(),
     note: z.string().trim().max(500, "note must be at most 500 characters").optional(),
+    /** The handler who sent the lot, as the scale ticket names it. */
+    ...senderFields,
   })
   .superRefine((v, ctx) => {
+    checkSender(v, ctx);
     if (v.tareKg > v.grossKg) {
       ctx.addIssue({ code: "custom", path: ["tareKg"], message: `tare (${v.tareKg} kg) is more than gross (${v.grossKg} kg): check the ticket` });
       return;

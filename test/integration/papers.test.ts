@@ -1,3 +1,4 @@
+import { randomUUID } from "node:crypto";
 import Papa from "papaparse";
 import { beforeAll, describe, expect, test } from "vitest";
 import type { TDb } from "@/lib/db/client";
@@ -134,6 +135,9 @@ describe("retention: regenerating a stored document", () => {
     const receiptText = squash(pdfPages(receipt.bytes).join("\n"));
     expect(receiptText).toContain("exactly 2 % is within tolerance");
 
+    // Checking and regenerating compare with the stored row; they never write to it.
+    const storedBefore = await db.document.findMany({ where: { siteId: s.site.id }, orderBy: { id: "asc" } });
+    expect(storedBefore).toHaveLength(2);
     for (const served of [manifest, receipt]) {
       const id = served.response.headers.get("x-document-id")!;
       const verify = await call(r.document.GET, { path: `/api/v1/records/documents/${id}`, key: s.keys.yard, ids: { id } });
@@ -143,19 +147,25 @@ describe("retention: regenerating a stored document", () => {
       expect(Buffer.compare(again.bytes, served.bytes)).toBe(0);
       expect(again.response.headers.get("x-identical")).toBe("true");
     }
+    expect(await db.document.findMany({ where: { siteId: s.site.id }, orderBy: { id: "asc" } })).toEqual(storedBefore);
 
-    // a snapshot changed after issue no longer makes the stored bytes
+    // An issued document cannot be changed afterwards: the database refuses (document-append-only.test.ts).
     const id = manifest.response.headers.get("x-document-id")!;
     const row = await db.document.findUniqueOrThrow({ where: { id } });
-    await db.document.update({ where: { id }, data: { input: row.input.replace(s.facility.name, "Someone Else Ltd") } });
-    const tampered = await call(r.document.GET, { path: `/api/v1/records/documents/${id}`, key: s.keys.compliance, ids: { id } });
-    expect(tampered.body.verification.isIdentical).toBe(false);
+    await expect(db.document.update({ where: { id }, data: { input: row.input.replace(s.facility.name, "Someone Else Ltd") } })).rejects.toThrow(/append-only/);
+    expect(await db.document.findUniqueOrThrow({ where: { id } })).toEqual(row);
 
     const list = await call(r.documents.GET, { path: `/api/v1/records/documents?site=${s.site.id}`, key: s.keys.compliance });
     expect(list.body.documents.map((d: { kind: string }) => d.kind).sort()).toEqual(["manifest", "receipt-form"]);
     expect(list.body.documents[0]).toMatchObject({ loadReference: s.load.reference, issuedByLabel: expect.stringContaining("test compliance") });
     const foreign = await makeShippingSite(db);
     expect((await call(r.document.GET, { path: `/api/v1/records/documents/${id}`, key: foreign.keys.admin, ids: { id } })).status).toBe(404);
+
+    // A row whose snapshot no longer makes the bytes of its hash (written behind the code's back) is caught by the check.
+    const forged = await db.document.create({ data: { ...row, id: randomUUID(), input: row.input.replace(s.facility.name, "Someone Else Ltd") } });
+    const tampered = await call(r.document.GET, { path: `/api/v1/records/documents/${forged.id}`, key: s.keys.compliance, ids: { id: forged.id } });
+    expect(tampered.status).toBe(200);
+    expect(tampered.body.verification).toMatchObject({ storedSha256: row.sha256, isIdentical: false });
   });
 });
 

@@ -10,6 +10,6 @@ export const GET = withActor(async ({ actor, request }) => {
     return new Response(new Uint8Array(pdf), { headers: { ...paperHeaders(document, paperFileName("records", `${q.from}-to-${q.to}`)), "x-document-new": String(isNew) } });
   }
   const records = await shipmentRecords(actor, q);
-  if (q.format === "json") return Response.json({ from: q.from, to: q.to, rows: records.rows });
+  if (q.format === "json") return Response.json({ from: q.from, to: q.to, rows: records.rows, notes: records.notes });
   return new Response(records.csv, { headers: { "content-type": "text/csv; charset=utf-8", "content-disposition": `attachment; filename="${name}.csv"`, "cache-control": "private, no-store" } });
 });

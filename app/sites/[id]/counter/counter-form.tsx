@@ -41,6 +41,9 @@ export function CounterForm(props: {
   const [voltage, setVoltage] = useState("12");
   const [condition, setCondition] = useState("intact");
   const [source, setSource] = useState("core-return");
+  // A delivery from one fleet or business is many units: the sender stays for the next unit, like the source.
+  const [senderName, setSenderName] = useState("");
+  const [senderAddress, setSenderAddress] = useState("");
   const [weightUnit, setWeightUnit] = useState<TUnitSystem>(system);
   const [issues, setIssues] = useState<TIssue[]>([]);
   const [message, setMessage] = useState<{ text: string; isError: boolean } | null>(null);
@@ -111,6 +114,8 @@ export function CounterForm(props: {
       weightKg: weight === undefined ? undefined : weightUnit === "lb" ? lbToKg(weight) : weight,
       condition,
       source,
+      senderName: senderName.trim() || undefined,
+      senderAddress: senderAddress.trim() || undefined,
       containerId: isDamaged ? String(form.get("containerId") ?? "") || undefined : undefined,
       saleRef: String(form.get("saleRef") ?? "").trim() || undefined,
     };
@@ -141,7 +146,7 @@ export function CounterForm(props: {
     setSaved({ batteryKg: unit.batteryKg, leadKg: unit.leadKg, acidKg: unit.acidKg, method: unit.method, warnings: result.composition?.warnings ?? [] });
     setTotals(result.siteTotals);
     setLatest((rows) => [{ id: unit.id, receivedAt: unit.receivedAt, kind: unit.kind, nominalVoltage: unit.nominalVoltage, condition: unit.condition, batteryKg: unit.batteryKg, leadKg: unit.leadKg }, ...rows].slice(0, 8));
-    // The next unit keeps kind and voltage (and source); everything particular to this unit is cleared.
+    // The next unit keeps kind and voltage (and source and sender); everything particular to this unit is cleared.
     for (const name of ["capacityAh", "cca", "groupSize", "weight", "saleRef"]) {
       const input = formRef.current?.elements.namedItem(name) as HTMLInputElement | null;
       if (input) input.value = "";
@@ -295,6 +300,21 @@ export function CounterForm(props: {
             ))}
           </div>
         </fieldset>
+        <div>
+          <label htmlFor="senderName">
+            Sent by <span className="hint">optional</span>
+          </label>
+          <input id="senderName" name="senderName" autoComplete="off" value={senderName} onChange={(e) => setSenderName(e.target.value)} {...invalid("senderName")} />
+          <p className="hint" style={{ margin: "0.15rem 0 0" }}>A fleet or business: its name. None for a member of the public. Kept for the next unit.</p>
+          {errorText("senderName")}
+        </div>
+        <div>
+          <label htmlFor="senderAddress">
+            Sender&rsquo;s address <span className="hint">optional</span>
+          </label>
+          <input id="senderAddress" name="senderAddress" autoComplete="off" value={senderAddress} onChange={(e) => setSenderAddress(e.target.value)} {...invalid("senderAddress")} />
+          {errorText("senderAddress")}
+        </div>
         <div className="actions">
           <button className="primary" type="submit" disabled={busy}>
             {busy ? "Saving…" : "Save unit"}

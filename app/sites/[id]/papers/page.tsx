@@ -71,7 +71,7 @@ export default async function PapersPage({ params, searchParams }: { params: Pro
 
       <h2 id="records-heading">Shipment records</h2>
       <p className="muted">
-        Shipments received and sent with the fields of 40 CFR 273.39 (received: origin, quantity by type, date received; sent: destination name and address, quantity by type, date it left). A large quantity handler keeps them at least three years.
+        Shipments received and sent with the fields of 40 CFR 273.39 (received: origin name and address, quantity by type, date received; sent: destination name and address, quantity by type, date it left). A large quantity handler keeps them at least three years.
       </p>
       <form method="get" className="row" aria-label="Shipment records period" style={{ alignItems: "end" }}>
         <div>
@@ -135,9 +135,11 @@ export default async function PapersPage({ params, searchParams }: { params: Pro
         </table>
       )}
       {records && records.rows.length === 0 && <p className="muted">No shipments received or sent in this period.</p>}
-      <p className="small muted">
-        Units and lots are logged with their source, not the name and address of the handler who sent them: fill the sender in from the scale tickets where the record asks for it.
-      </p>
+      {records?.notes.map((note) => (
+        <p key={note} className="small muted" data-testid="records-note">
+          {note}
+        </p>
+      ))}
       <p className="caution" role="note">
         {GENERAL_CAUTION}
       </p>

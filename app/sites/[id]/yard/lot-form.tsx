@@ -54,6 +54,8 @@ export function LotForm({ siteId, unitSystem, kinds, containers }: { siteId: str
     const body = {
       site: siteId,
       ticketNumber: String(form.get("ticketNumber") ?? "").trim(),
+      senderName: String(form.get("senderName") ?? "").trim() || undefined,
+      senderAddress: String(form.get("senderAddress") ?? "").trim() || undefined,
       grossKg: Number.isFinite(grossKg) ? grossKg : undefined,
       tareKg: Number.isFinite(tareKg) ? tareKg : undefined,
       unitCount: Number.isFinite(units) ? units : undefined,
@@ -90,6 +92,20 @@ export function LotForm({ siteId, unitSystem, kinds, containers }: { siteId: str
         <label htmlFor="lot-ticket">Ticket number</label>
         <input id="lot-ticket" name="ticketNumber" autoComplete="off" {...invalid("ticketNumber")} />
         {error("ticketNumber")}
+      </div>
+      <div>
+        <label htmlFor="lot-sender">
+          Sent by <span className="hint">optional</span>
+        </label>
+        <input id="lot-sender" name="senderName" autoComplete="off" {...invalid("senderName")} />
+        {error("senderName")}
+      </div>
+      <div style={{ gridColumn: "span 2" }}>
+        <label htmlFor="lot-sender-address">
+          Sender&rsquo;s address <span className="hint">optional</span>
+        </label>
+        <input id="lot-sender-address" name="senderAddress" autoComplete="off" {...invalid("senderAddress")} />
+        {error("senderAddress")}
       </div>
       <div>
         <label htmlFor="lot-gross">Gross ({unit})</label>
