@@ -5,7 +5,7 @@ import { randomUUID } from "node:crypto";
 import { copyFileSync, mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { inject } from "vitest";
+import { afterAll, beforeAll, inject } from "vitest";
 import { createDb, db, type TDb } from "@/lib/db/client";
 import {
   applyMigrations,
@@ -106,4 +106,34 @@ export async function migratedScratchDatabase(args: { provider: TDatabaseProvide
       await scratch.drop();
     },
   };
+}
+
+/**
+ * Both databases for a test file that checks something of each, whatever the suite's mode: SQLite always, and
+ * PostgreSQL when a server answers (skipped with a warning naming `file` otherwise). Use with `describe.each`,
+ * and `clientFor(target)` inside: the worker's own database when the suite runs on that provider, else a migrated
+ * scratch database, dropped after the block.
+ */
+export async function bothDatabases(file: string): Promise<{ provider: TDatabaseProvider; skip: boolean; serverUrl?: string }[]> {
+  const postgres = await postgresForTests();
+  if (postgres.reason) console.warn(`[${file}] PostgreSQL tests SKIPPED: ${postgres.reason}`);
+  return [
+    { provider: "sqlite", skip: false },
+    { provider: "postgresql", skip: !postgres.url, serverUrl: postgres.url },
+  ];
+}
+
+/** Registers the hooks that open (and drop) a block's database; returns a getter for its client. */
+export function clientFor({ provider, skip, serverUrl }: { provider: TDatabaseProvider; skip: boolean; serverUrl?: string }): () => TDb {
+  let client: TDb | undefined;
+  let drop: (() => Promise<void>) | undefined;
+  beforeAll(async () => {
+    if (skip) return;
+    if (testProvider() === provider) client = await testDb();
+    else ({ db: client, drop } = await migratedScratchDatabase({ provider, serverUrl }));
+  });
+  afterAll(async () => {
+    await drop?.();
+  });
+  return () => client!;
 }

@@ -2,38 +2,20 @@
 // shipment_senders_document_append_only migration refuse UPDATE and DELETE (and TRUNCATE on PostgreSQL).
 // A stored document is the proof of what was issued (issue #5, Retention: "Store a hash of each issued document").
 import { randomUUID } from "node:crypto";
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import type { TDb } from "@/lib/db/client";
-import type { TDatabaseProvider } from "@/lib/db/migrate";
-import { migratedScratchDatabase, postgresForTests, testDb, testProvider } from "../helpers/db";
+import { describe, expect, test } from "vitest";
+import { bothDatabases, clientFor } from "../helpers/db";
 
-const postgres = await postgresForTests();
-if (postgres.reason) console.warn(`[document-append-only.test] PostgreSQL tests SKIPPED: ${postgres.reason}`);
+const targets = await bothDatabases("document-append-only.test");
 
-const targets: { provider: TDatabaseProvider; skip: boolean }[] = [
-  { provider: "sqlite", skip: false },
-  { provider: "postgresql", skip: !postgres.url },
-];
-
-describe.each(targets)("issued documents on $provider", ({ provider, skip }) => {
-  let client: TDb;
-  let drop: (() => Promise<void>) | undefined;
-
-  beforeAll(async () => {
-    if (skip) return;
-    // The worker's own database when the suite runs on this provider, else a migrated scratch one.
-    if (testProvider() === provider) client = await testDb();
-    else ({ db: client, drop } = await migratedScratchDatabase({ provider, serverUrl: postgres.url }));
-  });
-  afterAll(async () => {
-    await drop?.();
-  });
+describe.each(targets)("issued documents on $provider", (target) => {
+  const { provider, skip } = target;
+  const client = clientFor(target);
 
   async function issueDocument() {
     const tag = randomUUID().slice(0, 8);
-    const organisation = await client.organisation.create({ data: { name: `Document org ${tag}` } });
-    const site = await client.site.create({ data: { organisationId: organisation.id, name: `Document site ${tag}`, kind: "yard" } });
-    return client.document.create({
+    const organisation = await client().organisation.create({ data: { name: `Document org ${tag}` } });
+    const site = await client().site.create({ data: { organisationId: organisation.id, name: `Document site ${tag}`, kind: "yard" } });
+    return client().document.create({
       data: {
         siteId: site.id,
         kind: "records",
@@ -51,30 +33,30 @@ describe.each(targets)("issued documents on $provider", ({ provider, skip }) => 
 
   test.skipIf(skip)("a new document is stored", async () => {
     const document = await issueDocument();
-    expect(await client.document.findUnique({ where: { id: document.id } })).toMatchObject({ kind: "records", sha256: "a".repeat(64) });
+    expect(await client().document.findUnique({ where: { id: document.id } })).toMatchObject({ kind: "records", sha256: "a".repeat(64) });
   });
 
   test.skipIf(skip)("UPDATE is refused by the database and the document is unchanged", async () => {
     const document = await issueDocument();
-    await expect(client.$executeRawUnsafe(`UPDATE ${table} SET "sha256" = 'forged' WHERE "id" = ${param}`, document.id)).rejects.toThrow(/append-only/);
-    await expect(client.document.update({ where: { id: document.id }, data: { input: "{}" } })).rejects.toThrow(/append-only/);
-    await expect(client.document.updateMany({ where: { siteId: document.siteId }, data: { issuedBy: "someone else" } })).rejects.toThrow(/append-only/);
-    expect(await client.document.findUniqueOrThrow({ where: { id: document.id } })).toEqual(document);
+    await expect(client().$executeRawUnsafe(`UPDATE ${table} SET "sha256" = 'forged' WHERE "id" = ${param}`, document.id)).rejects.toThrow(/append-only/);
+    await expect(client().document.update({ where: { id: document.id }, data: { input: "{}" } })).rejects.toThrow(/append-only/);
+    await expect(client().document.updateMany({ where: { siteId: document.siteId }, data: { issuedBy: "someone else" } })).rejects.toThrow(/append-only/);
+    expect(await client().document.findUniqueOrThrow({ where: { id: document.id } })).toEqual(document);
   });
 
   test.skipIf(skip)("DELETE is refused by the database and the document is still there", async () => {
     const document = await issueDocument();
-    await expect(client.$executeRawUnsafe(`DELETE FROM ${table} WHERE "id" = ${param}`, document.id)).rejects.toThrow(/append-only/);
-    await expect(client.document.delete({ where: { id: document.id } })).rejects.toThrow(/append-only/);
-    await expect(client.document.deleteMany({ where: { id: document.id } })).rejects.toThrow(/append-only/);
-    expect(await client.document.count({ where: { id: document.id } })).toBe(1);
+    await expect(client().$executeRawUnsafe(`DELETE FROM ${table} WHERE "id" = ${param}`, document.id)).rejects.toThrow(/append-only/);
+    await expect(client().document.delete({ where: { id: document.id } })).rejects.toThrow(/append-only/);
+    await expect(client().document.deleteMany({ where: { id: document.id } })).rejects.toThrow(/append-only/);
+    expect(await client().document.count({ where: { id: document.id } })).toBe(1);
   });
 
   if (provider === "postgresql") {
     test.skipIf(skip)("TRUNCATE is refused too", async () => {
       const document = await issueDocument();
-      await expect(client.$executeRawUnsafe(`TRUNCATE ${table}`)).rejects.toThrow(/append-only/);
-      expect(await client.document.count({ where: { id: document.id } })).toBe(1);
+      await expect(client().$executeRawUnsafe(`TRUNCATE ${table}`)).rejects.toThrow(/append-only/);
+      expect(await client().document.count({ where: { id: document.id } })).toBe(1);
     });
   }
 });
