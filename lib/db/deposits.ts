@@ -124,12 +124,6 @@ export function jsonRows(rows: readonly unknown[]): Prisma.Sql {
 export const jsonText = (i: number) => Prisma.raw(`(j.value ->> ${Math.trunc(i)})`);
 export const jsonInt = (i: number) => Prisma.raw(`CAST(j.value ->> ${Math.trunc(i)} AS INTEGER)`);
 
-/** Element `i` of the row, a calendar day "YYYY-MM-DD", as the instant stored for a sale of that day (noon UTC, see saleInstant). */
-export const jsonNoonOfDay = (i: number) =>
-  provider() === "postgresql"
-    ? Prisma.raw(`CAST((j.value ->> ${Math.trunc(i)}) || ' 12:00:00' AS TIMESTAMP(3))`)
-    : Prisma.raw(`((j.value ->> ${Math.trunc(i)}) || 'T12:00:00.000+00:00')`);
-
 /** An instant as a parameter of a raw write, in the column's own format. */
 export const timeParam = (at: Date): Prisma.Sql =>
   provider() === "postgresql" ? Prisma.sql`CAST(${at.toISOString()} AS TIMESTAMP(3))` : Prisma.sql`${dbTimeText(at)}`;
@@ -629,7 +623,7 @@ export async function postDepositEntry(actor: TActor, input: TDepositPost) {
   return { kind: input.kind, ...(await recordSale(actor, input)) };
 }
 
-export type TCounterReturnResult = TIntakeResult & { body: Record<string, unknown> & { deposit: Partial<TBookedReturn> & { isBooked: boolean; message: string } } };
+export type TCounterReturnResult = TIntakeResult & { body: Record<string, unknown> & { deposit: TBookedReturn & { isBooked: true } } };
 
 const RETURN_SCOPE = "POST /api/v1/deposits/returns";
 
@@ -639,52 +633,25 @@ async function replayReturn(scope: string, key: string): Promise<TCounterReturnR
 }
 
 /**
- * A used battery logged at the Counter against a sale. The return is checked first, so a choice the rule
- * does not allow writes nothing; then the unit is logged (the intake's own transaction, with the same
- * idempotency key) and the deposit side is booked in a second transaction that re-checks under the
- * store's lock, links the entry to the unit and stores the answer for retries. The two are not one
- * transaction because the intake owns its transaction; should the second refuse (another refund of the
- * same sale came first), the unit stays logged and the answer says the deposit was not booked.
+ * A used battery logged at the Counter against a sale, and its deposit booked — one transaction: the unit, its
+ * totals and trail event (recordIntake), then the refund, credit or forfeit linked to it, checked under the
+ * store's lock, and the idempotency record of the whole answer. A choice the rule does not allow (the window
+ * closed, the sale already refunded) rolls the unit back too, so nothing is written and the clerk sees why.
+ * A retry with the same key answers with the first response, even once the window has closed since.
  */
 export async function recordReturn(actor: TActor, input: TCounterReturn, idempotencyKey?: string): Promise<TCounterReturnResult> {
   const site = await siteFor(actor, input.unit.site, "deposits.write");
-  const scope = `${actor.ref} ${RETURN_SCOPE}`;
   if (idempotencyKey) {
-    const earlier = await replayReturn(scope, idempotencyKey);
+    const earlier = await replayReturn(`${actor.ref} ${RETURN_SCOPE}`, idempotencyKey);
     if (earlier) return earlier;
   }
-  const rule = requireRule(site);
+  requireRule(site);
   const saleRef = input.unit.saleRef!;
-  const state = await saleState(db(), site.id, saleRef);
-  if (!state) throw new AppError("invalid_input", `There is no sale ${saleRef} at this store.`, [{ field: "saleRef", message: `no sale ${saleRef} at this store: check the receipt` }]);
-  const timeZone = siteTimeZone(site.jurisdiction);
-  assertAction(assessReturn({ state, rule, isCustom: false, returnedAt: new Date(), timeZone }), input.action);
-
-  const intake = await recordIntake(actor, input.unit, idempotencyKey);
-  const unitBody = intake.body as Record<string, unknown> & { unit: { id: string } };
-  const unitId = unitBody.unit.id;
-  const remember = async (tx: TTx, body: TCounterReturnResult["body"]) => {
-    if (idempotencyKey) await tx.idempotencyKey.create({ data: { scope, key: idempotencyKey, status: 201, body: JSON.stringify(body) } });
-  };
-  try {
-    return await db().$transaction(async (tx) => {
-      const booked = await bookReturn(tx, actor, { site, saleRef, unitId, action: input.action, now: new Date() });
-      const body = { ...unitBody, deposit: { isBooked: true, ...booked } };
-      await remember(tx, body);
-      return { status: 201, body, isReplay: false };
-    });
-  } catch (error) {
-    // The same key twice at once: the loser answers with the winner's response.
-    if (idempotencyKey) {
-      const earlier = await replayReturn(scope, idempotencyKey);
-      if (earlier) return earlier;
-    }
-    if (!(error instanceof AppError) || error.status >= 500) throw error;
-    const detail = error.issues[0]?.message ?? error.message;
-    const body = { ...unitBody, deposit: { isBooked: false, action: input.action, message: `The unit is logged, but the deposit was not booked: ${detail}` } };
-    await db().$transaction((tx) => remember(tx, body));
-    return { status: 201, body, isReplay: false };
-  }
+  const result = await recordIntake(actor, input.unit, idempotencyKey, {
+    idempotencyScope: RETURN_SCOPE,
+    within: async (tx, unit) => ({ deposit: { isBooked: true, ...(await bookReturn(tx, actor, { site, saleRef, unitId: unit.id, action: input.action, now: unit.at })) } }),
+  });
+  return result as TCounterReturnResult;
 }
 
 const FORFEIT_BATCH = 1_000;

@@ -80,6 +80,12 @@ export function normaliseHeader(name: string): string {
     .replace(/^_+|_+$/g, "");
 }
 
+const DATE_TEXT = /^\d{4}-\d{2}-\d{2}$/;
+const QUANTITY_TEXT = /^(?:100|[1-9]\d?)$/;
+// project choice: 0.00 to 1000.00 dollars a line, optional "$", at most two decimals
+const DEPOSIT_TEXT = /^\$?(?:1000(?:\.0{1,2})?|\d{1,3}(?:\.\d{1,2})?)$/;
+const MAX = { saleId: 64, product: 200, groupSize: 20 } as const;
+
 /**
  * One sales line as text (trimmed cells by canonical column), with the messages a clerk sees. Every
  * check is a pattern so the row check stays cheap at 100 000 rows (a zod transform per cell cost about
@@ -88,17 +94,33 @@ export function normaliseHeader(name: string): string {
 export const ZSalesCsvRecord = z.object({
   date: z
     .string()
-    .regex(/^\d{4}-\d{2}-\d{2}$/, { error: "date must be YYYY-MM-DD", abort: true })
+    .regex(DATE_TEXT, { error: "date must be YYYY-MM-DD", abort: true })
     .refine(isCalendarDay, { error: (issue) => `date ${String(issue.input)} is not a real calendar date` }),
-  sale_id: z.string().min(1, { error: "sale id is missing" }).max(64, { error: "sale id must be at most 64 characters" }),
-  product: z.string().min(1, { error: "product is missing" }).max(200, { error: "product must be at most 200 characters" }),
-  group_size: z.string().max(20, { error: "group size must be at most 20 characters" }),
-  quantity: z.string().regex(/^(?:100|[1-9]\d?)$/, { error: "quantity must be a whole number from 1 to 100" }),
-  // project choice: 0.00 to 1000.00 dollars a line, optional "$", at most two decimals
-  deposit: z.string().regex(/^\$?(?:1000(?:\.0{1,2})?|\d{1,3}(?:\.\d{1,2})?)$/, {
-    error: "deposit must be a dollar amount like 15.00, from 0.00 to 1000.00",
-  }),
+  sale_id: z.string().min(1, { error: "sale id is missing" }).max(MAX.saleId, { error: `sale id must be at most ${MAX.saleId} characters` }),
+  product: z.string().min(1, { error: "product is missing" }).max(MAX.product, { error: `product must be at most ${MAX.product} characters` }),
+  group_size: z.string().max(MAX.groupSize, { error: `group size must be at most ${MAX.groupSize} characters` }),
+  quantity: z.string().regex(QUANTITY_TEXT, { error: "quantity must be a whole number from 1 to 100" }),
+  deposit: z.string().regex(DEPOSIT_TEXT, { error: "deposit must be a dollar amount like 15.00, from 0.00 to 1000.00" }),
 });
+
+/**
+ * The same checks as ZSalesCsvRecord, without words: true exactly when the schema accepts the record. A clean
+ * line, the common case, skips zod (a third of the parser's time at 100 000 lines); a line that fails is
+ * checked again by the schema for its messages.
+ */
+export function isCleanSalesRecord(r: TSalesCsvRecord): boolean {
+  return (
+    DATE_TEXT.test(r.date) &&
+    isCalendarDay(r.date) &&
+    r.sale_id.length >= 1 &&
+    r.sale_id.length <= MAX.saleId &&
+    r.product.length >= 1 &&
+    r.product.length <= MAX.product &&
+    r.group_size.length <= MAX.groupSize &&
+    QUANTITY_TEXT.test(r.quantity) &&
+    DEPOSIT_TEXT.test(r.deposit)
+  );
+}
 export type TSalesCsvRecord = z.infer<typeof ZSalesCsvRecord>;
 
 /** A valid sales line; `line` is its line number in the file (the header is line 1). */
@@ -294,10 +316,8 @@ export async function parseSalesCsv(input: TParseSalesCsvInput): Promise<TParseS
       quantity: row[at[4]]!.trim(),
       deposit: row[at[5]]!.trim(),
     };
-    const parsed = ZSalesCsvRecord.safeParse(record);
-    if (!parsed.success) {
-      for (const issue of parsed.error.issues) addError(line, String(issue.path[0] ?? "line"), issue.message);
-    }
+    const issues = isCleanSalesRecord(record) ? null : (ZSalesCsvRecord.safeParse(record).error?.issues ?? null);
+    if (issues) for (const issue of issues) addError(line, String(issue.path[0] ?? "line"), issue.message);
     // Every sale id counts for duplicates, even on a line with other problems.
     let isDuplicate = false;
     if (record.sale_id !== "") {
@@ -306,7 +326,7 @@ export async function parseSalesCsv(input: TParseSalesCsvInput): Promise<TParseS
       if (isDuplicate) addError(line, "sale_id", `sale id ${record.sale_id} is already used on line ${firstLine}`);
       else lineOfSaleRef.set(record.sale_id, line);
     }
-    if (!parsed.success || isDuplicate) return;
+    if (issues || isDuplicate) return;
     rowsValid++;
     if (onBatch && errorCount === 0) pending.push(saleLineFromText(record, line));
   };

@@ -253,3 +253,82 @@ describe("the import route's own same-origin check", () => {
     expect((await ledger(site.id)).sales).toBe(0);
   });
 });
+
+describe("the import's one transaction", () => {
+  const actorFor = (organisationId: string, siteId: string): TActor => ({
+    kind: "system",
+    id: "test",
+    ref: "system:test",
+    label: "Test",
+    organisationId,
+    roles: new Map([[siteId, "clerk"]]),
+  });
+
+  test("a bad line after several stored batches rolls them all back, and the next import and intake go through", async () => {
+    const { organisation, site } = await clerkAt();
+    const file = path.join(tmp, `late-error-${site.id}.csv`);
+    await writeSalesFile(file, 4_500); // batches of 1 000 lines are stored before the bad line is read
+    await import("node:fs/promises").then((fs) => fs.appendFile(file, "2025-02-30,LATE-1,Starter 12 V,24F,1,15.00\n"));
+    const actor = actorFor(organisation.id, site.id);
+    const bad = await lib.importSales(actor, { siteId: site.id, stream: createReadStream(file) });
+    // Line 1 is the header, 4 500 sales lines follow, so the bad one is line 4 502; 2025-02-30 is not a date.
+    expect(bad).toMatchObject({ isImported: false, rows: 4_500, errorCount: 1, errors: [{ line: 4_502, field: "date" }] });
+    expect(await ledger(site.id)).toEqual({ sales: 0, entries: 0, entrySumCents: 0, balanceCents: 0, trail: 0 });
+
+    // Nothing is left holding the database: a Prisma transaction, an intake and a clean import all go through.
+    const { recordIntake } = await import("@/lib/db/units");
+    const { ZUnitIntake } = await import("@/lib/intake/schema");
+    const unit = ZUnitIntake.parse({ site: site.id, kind: "flooded", nominalVoltage: 12, capacityAh: 60, weightKg: 18, condition: "intact", source: "core-return" });
+    expect((await recordIntake(actor, unit)).status).toBe(201);
+    const good = await lib.importSales(actor, { siteId: site.id, stream: createReadStream(fixture("good.csv")) });
+    expect(good).toMatchObject({ isImported: true, newSales: 5, balanceCents: 12_000 });
+  });
+
+  test("a line with no deposit gets one credit a battery, with ids derived from the sale's", async () => {
+    const { organisation, site } = await clerkAt();
+    const text = "date,sale_id,product,group_size,quantity,deposit\n2025-03-01,C-1,Starter 12 V,24F,3,0.00\n2025-03-01,C-2,Starter 12 V,24F,2,$30\n";
+    const result = await lib.importSales(actorFor(organisation.id, site.id), { siteId: site.id, stream: Readable.from([Buffer.from(text)]) });
+    // 3 batteries handed in on C-1 (no deposit), 2 batteries for $30.00 on C-2
+    expect(result).toMatchObject({ newSales: 2, chargeCount: 1, creditCount: 3, chargedCents: 3_000, balanceCents: 3_000 });
+    const sale = await db.sale.findUniqueOrThrow({ where: { siteId_saleRef: { siteId: site.id, saleRef: "C-1" } } });
+    const entries = await db.depositEntry.findMany({ where: { siteId: site.id, saleRef: "C-1" }, orderBy: { id: "asc" } });
+    expect(entries.map((e) => [e.id, e.kind, e.amountCents, e.unitId, e.createdBy])).toEqual([1, 2, 3].map((n) => [`${sale.id}:${n}`, "credit", 0, null, "system:test"]));
+    expect(entries[0]!.at.toISOString()).toBe("2025-03-01T12:00:00.000Z");
+    expect(sale).toMatchObject({ id: `${result.importId}:2`, importId: result.importId, quantity: 3, depositCents: 0 });
+    const trail = await db.trailEvent.findFirstOrThrow({ where: { siteId: site.id, action: "sales.imported" } });
+    expect(trail).toMatchObject({ entity: "import", entityId: result.importId, actor: "system:test" });
+    expect(JSON.parse(trail.after!)).toMatchObject({ lines: 3, rows: 2, imported: 2, skipped: 0, creditCount: 3, chargedCents: 3_000 });
+  });
+
+  test("an intake and a sale recorded while an import runs both land, and the totals add up", async () => {
+    const { organisation, site, key } = await clerkAt();
+    const file = path.join(tmp, `concurrent-${site.id}.csv`);
+    await writeSalesFile(file, 20_000);
+    const actor = actorFor(organisation.id, site.id);
+    const { recordIntake } = await import("@/lib/db/units");
+    const { recordSale } = await import("@/lib/db/deposits");
+    const { ZUnitIntake } = await import("@/lib/intake/schema");
+    const unit = ZUnitIntake.parse({ site: site.id, kind: "flooded", nominalVoltage: 12, capacityAh: 60, weightKg: 18, condition: "intact", source: "core-return" });
+    // Sent once the import has stored its first lines, so they wait for it (SQLite) or run beside it (PostgreSQL).
+    let during: Promise<[Awaited<ReturnType<typeof recordIntake>>, Awaited<ReturnType<typeof recordSale>>]> | undefined;
+    const imported = await lib.importSales(actor, {
+      siteId: site.id,
+      stream: createReadStream(file),
+      onProgress: (p) => {
+        if (p.phase !== "importing" || p.rows === 0 || during) return;
+        during = Promise.all([
+          recordIntake(actor, unit, `${key.slice(-12)}-during-import`),
+          recordSale(actor, { kind: "charge", site: site.id, saleRef: "DURING-1", product: "Starter 12 V", groupSize: "24F", quantity: 1, chargeCents: 1_500, handedIn: 0 }),
+        ]);
+      },
+    });
+    expect(during).toBeDefined();
+    const [intake, sale] = await during!;
+    // generate-sales.ts: 5 000 × (1+2+3+4) batteries at $15 in 20 000 lines; plus the one $15 sale
+    expect(imported).toMatchObject({ isImported: true, newSales: 20_000 });
+    expect(intake.status).toBe(201);
+    expect(sale.balanceCents).toBeGreaterThanOrEqual(1_500);
+    expect(await ledger(site.id)).toMatchObject({ sales: 20_001, entrySumCents: 5_000 * 10 * 1_500 + 1_500, balanceCents: 5_000 * 10 * 1_500 + 1_500 });
+    expect(await db.unit.count({ where: { siteId: site.id } })).toBe(1);
+  });
+});

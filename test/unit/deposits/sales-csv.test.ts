@@ -1,8 +1,9 @@
 import { createReadStream, readFileSync } from "node:fs";
 import path from "node:path";
 import { Readable } from "node:stream";
+import fc from "fast-check";
 import { describe, expect, test } from "vitest";
-import { parseSalesCsv, type TSaleLine } from "@/lib/deposits/sales-csv";
+import { isCleanSalesRecord, parseSalesCsv, ZSalesCsvRecord, type TSaleLine, type TSalesCsvRecord } from "@/lib/deposits/sales-csv";
 
 const FIXTURES = path.resolve(import.meta.dirname, "../../fixtures/sales");
 const fixture = (name: string) => createReadStream(path.join(FIXTURES, name));
@@ -219,5 +220,52 @@ describe("spreadsheet leftovers", () => {
       { line: 5, field: "line", message: "this line has 7 values but the first line names 6 columns" },
       { line: 6, field: "line", message: "this line has 5 values but the first line names 6 columns" },
     ]);
+  });
+});
+
+describe("the quick check of a clean line agrees with the schema", () => {
+  const clean: TSalesCsvRecord = { date: "2024-02-29", sale_id: "R-1", product: "Starter 12 V", group_size: "24F", quantity: "2", deposit: "30.00" };
+  // Edge values of each column, read off ZSalesCsvRecord's own limits (project choices, no outside source).
+  test.each([
+    [{}],
+    [{ date: "2023-02-29" }],
+    [{ date: "2024-13-01" }],
+    [{ date: "2024-2-1" }],
+    [{ date: "" }],
+    [{ sale_id: "" }],
+    [{ sale_id: "x".repeat(64) }],
+    [{ sale_id: "x".repeat(65) }],
+    [{ product: "" }],
+    [{ product: "p".repeat(200) }],
+    [{ product: "p".repeat(201) }],
+    [{ group_size: "" }],
+    [{ group_size: "g".repeat(20) }],
+    [{ group_size: "g".repeat(21) }],
+    [{ quantity: "0" }],
+    [{ quantity: "100" }],
+    [{ quantity: "101" }],
+    [{ quantity: "07" }],
+    [{ deposit: "0" }],
+    [{ deposit: "$1000.00" }],
+    [{ deposit: "1000.01" }],
+    [{ deposit: "15.005" }],
+    [{ deposit: "-1.00" }],
+  ] as Array<[Partial<TSalesCsvRecord>]>)("%o", (change) => {
+    const record = { ...clean, ...change };
+    expect(isCleanSalesRecord(record)).toBe(ZSalesCsvRecord.safeParse(record).success);
+  });
+
+  test("on generated records", () => {
+    const digits = (min: number, max: number) => fc.stringMatching(new RegExp(`^[0-9]{${min},${max}}$`));
+    const cell = fc.oneof(fc.string({ maxLength: 70 }), digits(1, 4));
+    const record = fc.record({
+      date: fc.oneof(fc.tuple(digits(4, 4), digits(1, 2), digits(1, 2)).map(([y, m, d]) => `${y}-${m}-${d}`), fc.string({ maxLength: 12 })),
+      sale_id: cell,
+      product: fc.string({ maxLength: 210 }),
+      group_size: fc.string({ maxLength: 24 }),
+      quantity: cell,
+      deposit: fc.oneof(fc.tuple(fc.constantFrom("", "$"), digits(1, 5), fc.constantFrom("", ".", ".0", ".00", ".000")).map((p) => p.join("")), cell),
+    });
+    fc.assert(fc.property(record, (r) => isCleanSalesRecord(r) === ZSalesCsvRecord.safeParse(r).success), { numRuns: 2_000 });
   });
 });
