@@ -42,8 +42,14 @@ test("a sender typed at the Counter and on a lot shows on the shipment records; 
   await lot.getByLabel(/^Gross/).fill("1300");
   await lot.getByLabel(/^Tare/).fill("1000");
   await lot.getByLabel("Units in the lot").fill("10");
+  await lot.getByLabel(/^Note/).fill(`E2E note ${tag}: two cases cracked`);
   await lot.getByRole("button", { name: "Receive lot" }).click();
   await expect(lot.getByRole("status")).toContainText(`Received lot ${ticket}: 10 units`);
+  // The Yard's list of lots shows who sent it and the note.
+  const received = page.getByRole("table", { name: "Lots received" }).locator(`tr[data-lot="${ticket}"]`);
+  await expect(received).toContainText(`E2E garage ${tag}`);
+  await expect(received).toContainText("8 Test Street, Quarry Bend");
+  await expect(received).toContainText(`E2E note ${tag}: two cases cracked`);
 
   await page.getByRole("link", { name: "Papers", exact: true }).click();
   const lotRow = page.getByRole("table", { name: "Shipment records" }).locator("tr", { hasText: `scale ticket ${ticket}` });

@@ -44,6 +44,8 @@ test("a yard manager receives a lot from a ticket, stows it, and sees the site r
   await expect(lot.getByTestId("lot-net")).toContainText("15.0 kg a unit");
   await lot.getByRole("button", { name: "Receive lot" }).click();
   await expect(lot.getByRole("status")).toContainText(`Received lot ${ticket}: ${count} units`);
+  // No sender was typed: the Yard's list of lots says so with a dash.
+  await expect(page.getByRole("table", { name: "Lots received" }).locator(`tr[data-lot="${ticket}"] td`).nth(1)).toHaveText("—");
 
   // Stow it by scanning its ticket into one pallet, and a loose unit into another: keyboard only.
   await chooseTarget(page, "YD-PAL-002");

@@ -55,6 +55,7 @@ export async function receiveLot(actor: TActor, input: TLotCreate, { at }: { at?
             ticketNumber: input.ticketNumber,
             senderName: input.senderName ?? null,
             senderAddress: input.senderAddress ?? null,
+            note: input.note ?? null,
             grossKg: input.grossKg,
             tareKg: input.tareKg,
             netKg,

@@ -113,7 +113,7 @@ export const ZLotCreate = z
     mix: z.array(ZLotMixRow, { error: "give the mix of kinds: at least one row" }).min(1, "give the mix of kinds: at least one row").max(20, "at most 20 rows in the mix"),
     /** Stow the whole lot into this open container as it is received. */
     containerId: z.string().trim().min(1).optional(),
-    note: z.string().trim().max(500, "note must be at most 500 characters").optional(),
+    note: z.string({ error: "the note must be text" }).trim().max(500, "note must be at most 500 characters").transform((v) => v || undefined).optional(),
     /** The handler who sent the lot, as the scale ticket names it. */
     ...senderFields,
   })

@@ -99,6 +99,8 @@ describe("POST /api/v1/lots", () => {
     ["mix that does not add up", { mix: [{ kind: "flooded", count: 49 }] }, "mix", "add up to 49"],
     ["a container that is not open", { containerId: "SEALED" }, "containerId", "is sealed"],
     ["a container of another site", { containerId: "ELSEWHERE" }, "containerId", "container at this site"],
+    // 500 characters: the project's own limit, the same as a unit's note (lib/intake/schema.ts); no outside source.
+    ["a note over 500 characters", { note: "n".repeat(501) }, "note", "at most 500 characters"],
   ])("refuses %s with a 400 field message and writes nothing", async (_case, change, field, message) => {
     const { organisation, site, key } = await yard();
     expect((await send(key, ticket(site.id, { ticketNumber: "DUP-1" }))).status).toBe(201);
@@ -112,6 +114,25 @@ describe("POST /api/v1/lots", () => {
     expect(response.status).toBe(400);
     expect((await response.json()).error.issues).toEqual(expect.arrayContaining([{ field, message: expect.stringContaining(message) }]));
     expect(await counts(site.id)).toEqual(before);
+  });
+
+  test("a note is stored with the lot, trimmed, and read back from the list; a blank one is not stored", async () => {
+    const { site, key } = await yard();
+    const note = "  Two cases cracked on arrival, set aside for the closed drum.  ";
+    const response = await send(key, ticket(site.id, { ticketNumber: "N-1", note }));
+    expect(response.status).toBe(201);
+    const { lot } = await response.json();
+    expect(lot.note).toBe(note.trim());
+    expect((await db.lot.findUniqueOrThrow({ where: { id: lot.id } })).note).toBe(note.trim());
+    // The longest note allowed (500 characters, the project's own limit) is kept whole.
+    const longest = "m".repeat(500);
+    expect((await send(key, ticket(site.id, { ticketNumber: "N-2", note: longest }))).status).toBe(201);
+    expect((await send(key, ticket(site.id, { ticketNumber: "N-3", note: "   " }))).status).toBe(201);
+    expect((await send(key, ticket(site.id, { ticketNumber: "N-4" }))).status).toBe(201);
+
+    const listed = await lots.GET(apiRequest(`/api/v1/lots?site=${site.id}`, { key }));
+    const byTicket = Object.fromEntries((await listed.json()).lots.map((l: { ticketNumber: string; note: string | null }) => [l.ticketNumber, l.note]));
+    expect(byTicket).toEqual({ "N-1": note.trim(), "N-2": longest, "N-3": null, "N-4": null });
   });
 
   test("the same ticket number at another site is a different ticket", async () => {

@@ -62,6 +62,7 @@ export function LotForm({ siteId, unitSystem, kinds, containers }: { siteId: str
       mixBasis: "count",
       mix: rows.map((r) => ({ kind: r.kind, nominalVoltage: Number(r.voltage), count: single ? units : Number.isFinite(num(r.count)) ? num(r.count) : undefined })),
       containerId: String(form.get("containerId") ?? "") || undefined,
+      note: String(form.get("note") ?? "").trim() || undefined,
     };
     setBusy(true);
     const response = await fetch("/api/v1/lots", { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
@@ -188,6 +189,13 @@ export function LotForm({ siteId, unitSystem, kinds, containers }: { siteId: str
           ))}
         </select>
         {error("containerId")}
+      </div>
+      <div style={{ gridColumn: "1 / -1" }}>
+        <label htmlFor="lot-note">
+          Note <span className="hint">optional</span>
+        </label>
+        <input id="lot-note" name="note" autoComplete="off" {...invalid("note")} />
+        {error("note")}
       </div>
       <div className="row" style={{ gridColumn: "1 / -1" }}>
         <button type="submit" disabled={busy}>

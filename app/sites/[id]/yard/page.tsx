@@ -188,6 +188,7 @@ export default async function YardPage({ params }: { params: Promise<{ id: strin
         <thead>
           <tr>
             <th>Ticket</th>
+            <th>Sent by</th>
             <th>Received</th>
             <th className="num">Units</th>
             <th className="num">Gross</th>
@@ -195,12 +196,17 @@ export default async function YardPage({ params }: { params: Promise<{ id: strin
             <th className="num">Net</th>
             <th className="num">Lead (range)</th>
             <th>Where</th>
+            <th>Note</th>
           </tr>
         </thead>
         <tbody>
           {lots.map((l) => (
-            <tr key={l.id}>
+            <tr key={l.id} data-lot={l.ticketNumber}>
               <td>{l.ticketNumber}</td>
+              <td>
+                {l.senderName ?? "—"}
+                {l.senderAddress && <div className="small muted">{l.senderAddress}</div>}
+              </td>
               <td>{day(l.receivedAt)}</td>
               <td className="num">{l.unitCount}</td>
               <td className="num">
@@ -216,6 +222,7 @@ export default async function YardPage({ params }: { params: Promise<{ id: strin
                 <Mass kg={l.leadKg} system={system} /> (<Mass kg={l.leadKgLow} system={system} decimals={0} />–<Mass kg={l.leadKgHigh} system={system} decimals={0} />)
               </td>
               <td>{l.container ? l.container.labelNumber : l.state}</td>
+              <td className="small">{l.note ?? ""}</td>
             </tr>
           ))}
         </tbody>

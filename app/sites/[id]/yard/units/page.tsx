@@ -105,6 +105,7 @@ export default async function YardUnitsPage({ params, searchParams }: { params: 
                 <th className="num">Net</th>
                 <th className="num">Lead</th>
                 <th className="num">Acid</th>
+                <th>Note</th>
               </tr>
             </thead>
             <tbody>
@@ -123,6 +124,7 @@ export default async function YardUnitsPage({ params, searchParams }: { params: 
                   <td className="num">
                     <Mass kg={l.acidKg} system={system} />
                   </td>
+                  <td className="small">{l.note ?? ""}</td>
                 </tr>
               ))}
             </tbody>

@@ -1,0 +1,2 @@
+-- AlterTable
+ALTER TABLE "Lot" ADD COLUMN "note" TEXT;
