@@ -6,7 +6,7 @@
 import { createServer } from "node:http";
 import path from "node:path";
 import next from "next";
-import { CLIENT_IP_HEADER, clientAddress, trustedProxies } from "../lib/auth/client-ip";
+import { clientAddress, clientIpHeader, trustedProxies } from "../lib/auth/client-ip";
 
 // tsx turns Node's source-map support on for the whole process; left on, Node would read and keep the source map
 // of every server chunk Next loads (43 MB of maps for 13 MB of code) and map every stack trace it builds.
@@ -19,9 +19,10 @@ export async function serve({ port = Number(process.env.PORT ?? 3000), hostname 
   const handle = app.getRequestHandler();
   await app.prepare();
   const trusted = trustedProxies();
+  const stamp = clientIpHeader(); // named before Next loads the app, which reads the same name
   const server = createServer((req, res) => {
     const forwarded = req.headers["x-forwarded-for"];
-    req.headers[CLIENT_IP_HEADER] = clientAddress({
+    req.headers[stamp] = clientAddress({
       peer: req.socket.remoteAddress ?? "unknown",
       forwardedFor: Array.isArray(forwarded) ? forwarded.join(",") : forwarded,
       trusted,

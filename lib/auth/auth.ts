@@ -3,7 +3,7 @@ import { prismaAdapter } from "better-auth/adapters/prisma";
 import { db, databaseProvider } from "@/lib/db/client";
 import { DEFAULT_DATABASE_URL } from "@/lib/db/migrate/database-url";
 import { authSecret } from "./secret";
-import { CLIENT_IP_HEADER } from "./client-ip";
+import { clientIpHeader } from "./client-ip";
 
 const port = process.env.PORT ?? "3000";
 const baseURL = process.env.BETTER_AUTH_URL ?? `http://localhost:${port}`;
@@ -32,7 +32,7 @@ function createAuth() {
       useSecureCookies: true,
       defaultCookieAttributes: { httpOnly: true, sameSite: "lax", secure: true },
       // The only client address we trust is the one our own server puts here (see lib/auth/client-ip.ts).
-      ipAddress: { ipAddressHeaders: [CLIENT_IP_HEADER] },
+      ipAddress: { ipAddressHeaders: [clientIpHeader()] },
     },
   });
 }

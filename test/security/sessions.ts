@@ -3,7 +3,7 @@
 import { randomUUID } from "node:crypto";
 import { hashPassword, insertPerson } from "@/lib/auth/people";
 import type { TRole } from "@/lib/auth/permissions";
-import { CLIENT_IP_HEADER } from "@/lib/auth/client-ip";
+import { clientIpHeader } from "@/lib/auth/client-ip";
 import type { TDb } from "@/lib/db/client";
 
 export const TEST_PASSWORD = "correct horse battery 42";
@@ -37,7 +37,7 @@ export async function signInRequest({ email, password, ip = randomAddress() }: {
   return POST(
     new Request("http://localhost:3000/api/auth/sign-in/email", {
       method: "POST",
-      headers: { "content-type": "application/json", [CLIENT_IP_HEADER]: ip },
+      headers: { "content-type": "application/json", [clientIpHeader()]: ip },
       body: JSON.stringify({ email, password }),
     }),
   );

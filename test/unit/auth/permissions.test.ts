@@ -1,6 +1,6 @@
 import { describe, expect, test } from "vitest";
 import { ACTIONS, can, sitesWhere, type TAction, type TActor, type TRole } from "@/lib/auth/permissions";
-import { clientAddress } from "@/lib/auth/client-ip";
+import { clientAddress, clientIpHeader, clientIpOf } from "@/lib/auth/client-ip";
 
 const actor = (roles: [string, TRole][]): TActor => ({ kind: "user", id: "u", ref: "user:u", label: "U", organisationId: "o", roles: new Map(roles) });
 
@@ -43,5 +43,19 @@ describe("clientAddress", () => {
     ["chained trusted proxies are skipped", "10.0.0.5", "198.51.100.7, 10.0.0.5", "198.51.100.7"],
   ])("%s", (_name, peer, forwardedFor, expected) => {
     expect(clientAddress({ peer, forwardedFor, trusted })).toBe(expected);
+  });
+});
+
+describe("the stamped client address", () => {
+  test("lives in a header named once per process, which a client cannot guess", () => {
+    const name = clientIpHeader();
+    expect(name).toMatch(/^x-leadger-client-ip-[0-9a-f]{24}$/);
+    expect(clientIpHeader()).toBe(name);
+    expect(clientIpOf(new Headers({ [name]: "203.0.113.9" }))).toBe("203.0.113.9");
+  });
+
+  test("a guessed or forwarded header is not an address", () => {
+    const forged = new Headers({ "x-leadger-client-ip": "198.51.100.1", "x-forwarded-for": "198.51.100.2", "x-real-ip": "198.51.100.3" });
+    expect(clientIpOf(forged)).toBe("unknown");
   });
 });

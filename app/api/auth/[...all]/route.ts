@@ -1,6 +1,6 @@
 import { toNextJsHandler } from "better-auth/next-js";
 import { auth } from "@/lib/auth/auth";
-import { CLIENT_IP_HEADER } from "@/lib/auth/client-ip";
+import { clientIpOf } from "@/lib/auth/client-ip";
 import { giveBackSignInTry, signInKeys, takeSignInTry } from "@/lib/auth/sign-in-limit";
 import { db } from "@/lib/db/client";
 
@@ -13,7 +13,7 @@ export async function POST(request: Request): Promise<Response> {
   if (!new URL(request.url).pathname.endsWith("/sign-in/email")) return handler().POST(request);
   const body = (await request.clone().json().catch(() => ({}))) as { email?: unknown };
   const email = typeof body.email === "string" ? body.email : "";
-  const keys = signInKeys({ email, ip: request.headers.get(CLIENT_IP_HEADER) ?? "unknown" });
+  const keys = signInKeys({ email, ip: clientIpOf(request.headers) });
   const verdict = await takeSignInTry(db(), keys);
   if (!verdict.isAllowed) {
     const minutes = Math.ceil(verdict.retryAfterS / 60);
