@@ -4,8 +4,9 @@ import type { SqlDriverAdapter, SqlDriverAdapterFactory, Transaction } from "@pr
 /**
  * Prisma's better-sqlite3 adapter runs everything on one connection and lets one transaction in at a time. The
  * intake hot path writes through that same connection with prepared statements (lib/db/fast-intake.ts); this
- * lock keeps it out while a Prisma transaction is open, and keeps Prisma out while it runs. The raw work is
- * synchronous, so holding the lock never spans an await.
+ * lock keeps it out while a Prisma transaction is open, and keeps Prisma out while it runs. Prisma's queries
+ * outside a transaction take it as well, so nothing ever runs inside someone else's open transaction. The raw
+ * intake is synchronous, so holding the lock there never spans an await.
  */
 export class ConnectionLock {
   #tail: Promise<void> = Promise.resolve();
@@ -32,6 +33,14 @@ export function sharedSqliteConnection(
   let opened: Promise<TSqliteConnection> | undefined;
   let resolveOpened!: (c: TSqliteConnection) => void;
   const waiting = new Promise<TSqliteConnection>((resolve) => (resolveOpened = resolve));
+  const locked = async <T>(fn: () => Promise<T>): Promise<T> => {
+    const release = await lock.acquire();
+    try {
+      return await fn();
+    } finally {
+      release();
+    }
+  };
   const wrapped: SqlDriverAdapterFactory = {
     provider: factory.provider,
     adapterName: factory.adapterName,
@@ -42,8 +51,11 @@ export function sharedSqliteConnection(
       const adapter: SqlDriverAdapter = {
         provider: inner.provider,
         adapterName: inner.adapterName,
-        queryRaw: (q) => inner.queryRaw(q),
-        executeRaw: (q) => inner.executeRaw(q),
+        // A query outside a transaction waits for the lock too: on the one connection it would otherwise run inside
+        // whichever transaction is open (an import, an interactive Prisma transaction between two of its awaits),
+        // read its uncommitted rows, and vanish with it on a rollback.
+        queryRaw: (q) => locked(() => inner.queryRaw(q)),
+        executeRaw: (q) => locked(() => inner.executeRaw(q)),
         executeScript: (s) => inner.executeScript(s),
         dispose: () => inner.dispose(),
         ...(inner.getConnectionInfo ? { getConnectionInfo: () => inner.getConnectionInfo!() } : {}),
