@@ -2,7 +2,7 @@ import Database from "better-sqlite3";
 import pg from "pg";
 import { databaseProvider, pgConfig, sqliteFilePath, DEFAULT_DATABASE_URL } from "@/lib/db/migrate/database-url";
 import { pgTime, sqliteTime } from "@/lib/db/fast-intake";
-import { RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "./raw-intake";
+import { RAW_INTAKE_ONE_STATEMENT, RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "./raw-intake";
 
 type TRaw = (siteId: string) => Promise<void>;
 const holder = globalThis as unknown as { leadgerRawIntake?: TRaw };
@@ -11,22 +11,8 @@ function open(): TRaw {
   const url = process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL;
   if (databaseProvider(url) === "postgresql") {
     const pool = new pg.Pool({ ...pgConfig(url), max: 10 });
-    const insert = toPg(RAW_UNIT_INSERT);
-    const update = toPg(RAW_TOTALS_UPDATE);
-    return async (siteId) => {
-      const client = await pool.connect();
-      try {
-        await client.query("BEGIN");
-        await client.query(insert, rawUnitArgs(siteId, pgTime));
-        await client.query(update, [siteId]);
-        await client.query("COMMIT");
-      } catch (error) {
-        await client.query("ROLLBACK");
-        throw error;
-      } finally {
-        client.release();
-      }
-    };
+    const text = toPg(RAW_INTAKE_ONE_STATEMENT);
+    return async (siteId) => void (await pool.query({ name: "bench-floor", text, values: [...rawUnitArgs(siteId, pgTime), siteId] }));
   }
   const sqlite = new Database(sqliteFilePath(url));
   sqlite.pragma("journal_mode = WAL");

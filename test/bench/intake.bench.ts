@@ -15,7 +15,7 @@ import pg from "pg";
 import { buildIfNeeded } from "../../scripts/build-if-needed";
 import { databaseProvider, pgConfig, sqliteFilePath } from "../../lib/db/migrate/database-url";
 import { applyMigrations, resetDatabase } from "../../lib/db/migrate/migrations";
-import { RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "../../lib/bench/raw-intake";
+import { RAW_INTAKE_ONE_STATEMENT, RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "../../lib/bench/raw-intake";
 import { pgTime, sqliteTime } from "../../lib/db/fast-intake";
 import { newApiKey } from "../../lib/auth/api-keys";
 
@@ -98,10 +98,14 @@ async function storageFloor(siteId: string) {
   const until = performance.now() + Math.min(DURATION_S, 5) * 1000;
   while (performance.now() < until) {
     const t0 = performance.now();
-    await sql.tx(async () => {
-      await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, time));
-      await sql.run(RAW_TOTALS_UPDATE, [siteId]);
-    });
+    if (provider === "postgresql") {
+      await sql.run(RAW_INTAKE_ONE_STATEMENT, [...rawUnitArgs(siteId, time), siteId]); // as the bare route does
+    } else {
+      await sql.tx(async () => {
+        await sql.run(RAW_UNIT_INSERT, rawUnitArgs(siteId, time));
+        await sql.run(RAW_TOTALS_UPDATE, [siteId]);
+      });
+    }
     latencies.push(performance.now() - t0);
   }
   await sql.close();
