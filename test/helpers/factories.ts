@@ -1,7 +1,17 @@
 import { randomUUID } from "node:crypto";
 import { newApiKey } from "@/lib/auth/api-keys";
-import type { TRole } from "@/lib/auth/permissions";
+import type { TActor, TRole } from "@/lib/auth/permissions";
 import type { TDb } from "@/lib/db/client";
+
+/** An actor for calling data functions directly (no HTTP, no sign-in), with one role at one site. */
+export const systemActor = (organisationId: string, siteId: string, role: TRole = "clerk"): TActor => ({
+  kind: "system",
+  id: "test",
+  ref: "system:test",
+  label: "Test",
+  organisationId,
+  roles: new Map<string, TRole>([[siteId, role]]),
+});
 
 /** Unique data per call, so tests run in parallel on one database without resets. */
 export async function makeOrgWithSite(db: TDb, { kind = "store", unitSystem = "kg", rulebookId = "us-federal" } = {}) {

@@ -2,11 +2,10 @@
 // the deposit entry linked to it commit together or not at all, on SQLite and on PostgreSQL (npm run test:pg).
 import { beforeAll, describe, expect, test } from "vitest";
 import { testDb } from "../helpers/db";
-import { apiRequest, makeContainer, makeKey, makeOrgWithSite } from "../helpers/factories";
+import { apiRequest, makeContainer, makeKey, makeOrgWithSite, systemActor } from "../helpers/factories";
 import type { TDb } from "@/lib/db/client";
 import { addDays, calendarDay } from "@/lib/deposits/calendar-day";
 import { ZUnitIntake } from "@/lib/intake/schema";
-import type { TActor } from "@/lib/auth/permissions";
 
 let db: TDb;
 let deposits: typeof import("@/app/api/v1/deposits/route");
@@ -173,19 +172,11 @@ describe("a return at the Counter is one transaction", () => {
 });
 
 describe("recordIntake with work within its transaction", () => {
-  const actorFor = (organisationId: string, siteId: string): TActor => ({
-    kind: "system",
-    id: "test",
-    ref: "system:test",
-    label: "Test",
-    organisationId,
-    roles: new Map([[siteId, "clerk"]]),
-  });
 
   test("a throw in `within` undoes the unit, its totals, level change, trail event, idempotency record and what it wrote", async () => {
     const { recordIntake } = await import("@/lib/db/units");
     const { organisation, site } = await store();
-    const actor = actorFor(organisation.id, site.id);
+    const actor = systemActor(organisation.id, site.id);
     const before = await everything(site.id);
     const intake = ZUnitIntake.parse(flooded(site.id, "TX-8"));
     let seenUnit: string | undefined;
@@ -210,7 +201,7 @@ describe("recordIntake with work within its transaction", () => {
   test("what `within` returns is part of the answer and of the idempotency record", async () => {
     const { recordIntake } = await import("@/lib/db/units");
     const { organisation, site } = await store();
-    const actor = actorFor(organisation.id, site.id);
+    const actor = systemActor(organisation.id, site.id);
     const intake = ZUnitIntake.parse(flooded(site.id, "TX-9"));
     const first = await recordIntake(actor, intake, `${site.id}-extra`, { idempotencyScope: "test scope", within: async (_tx, unit) => ({ extra: { unitId: unit.id } }) });
     expect(first.body).toMatchObject({ extra: { unitId: (first.body as { unit: { id: string } }).unit.id } });

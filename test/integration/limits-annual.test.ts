@@ -1,9 +1,8 @@
 import { beforeAll, describe, expect, test } from "vitest";
 import { testDb } from "../helpers/db";
-import { apiRequest, makeKey, makeOrgWithSite, params } from "../helpers/factories";
+import { apiRequest, makeKey, makeOrgWithSite, params, systemActor } from "../helpers/factories";
 import { pdfPages, squash } from "../unit/papers/pdf-tools";
 import type { TDb } from "@/lib/db/client";
-import type { TActor, TRole } from "@/lib/auth/permissions";
 import { changeSiteLevel } from "@/lib/db/totals";
 import { annualFigures } from "@/lib/annual/annual-figures";
 
@@ -17,7 +16,6 @@ beforeAll(async () => {
   ({ receiveLot } = await import("@/lib/db/lots"));
 });
 
-const systemActor = (organisationId: string, siteId: string): TActor => ({ kind: "system", id: "test", ref: "system:test", label: "Test", organisationId, roles: new Map<string, TRole>([[siteId, "admin"]]) });
 const lot = (site: string, netKg: number, unitCount: number) => ({
   site,
   ticketNumber: `T-${Math.random().toString(36).slice(2, 9)}`,
@@ -33,7 +31,7 @@ async function siteWithHistory() {
   const { organisation, site } = await makeOrgWithSite(db, { kind: "yard" });
   const { key } = await makeKey(db, { organisationId: organisation.id, siteId: site.id, role: "compliance" });
   const { key: clerkKey } = await makeKey(db, { organisationId: organisation.id, siteId: site.id, role: "clerk" });
-  const actor = systemActor(organisation.id, site.id);
+  const actor = systemActor(organisation.id, site.id, "admin");
   await receiveLot(actor, lot(site.id, 1_000, 50), { at: new Date("2024-12-10T09:00:00Z") });
   await receiveLot(actor, lot(site.id, 500, 25), { at: new Date("2025-03-01T10:00:00Z") });
   await db.$transaction((tx) =>

@@ -1,8 +1,7 @@
 import { beforeAll, describe, expect, test } from "vitest";
 import { testDb } from "../helpers/db";
-import { apiRequest, makeContainer, makeKey, makeOrgWithSite, makeSite, params } from "../helpers/factories";
+import { apiRequest, makeContainer, makeKey, makeOrgWithSite, makeSite, params, systemActor } from "../helpers/factories";
 import type { TDb } from "@/lib/db/client";
-import type { TActor, TRole } from "@/lib/auth/permissions";
 import { changeSiteLevel, negate } from "@/lib/db/totals";
 import { dateOfUtcDay, utcDay } from "@/lib/limits/utc-day";
 
@@ -31,7 +30,6 @@ async function yard() {
   return { organisation, site, key };
 }
 
-const systemActor = (organisationId: string, siteId: string): TActor => ({ kind: "system", id: "test", ref: "system:test", label: "Test", organisationId, roles: new Map<string, TRole>([[siteId, "admin"]]) });
 
 /** A lot whose net weight is exactly `netKg` (gross − 1 kg tare), 100 units. */
 const lotOf = (site: string, netKg: number, change: Record<string, unknown> = {}) => ({
@@ -96,7 +94,7 @@ describe("GET /api/v1/sites/:id/limits", () => {
 
   test("the forecast uses the net intake of the last 28 days only (one aggregate of the level ledger)", async () => {
     const { organisation, site, key } = await yard();
-    const actor = systemActor(organisation.id, site.id);
+    const actor = systemActor(organisation.id, site.id, "admin");
     const now = new Date();
     await receiveLot(actor, { ...lotOf(site.id, 1_000), mixBasis: "count", mix: [{ kind: "flooded", nominalVoltage: 12, count: 100 }] }, { at: new Date(now.getTime() - 40 * DAY) });
     await receiveLot(actor, { ...lotOf(site.id, 560, { unitCount: 28, mix: [{ kind: "flooded", nominalVoltage: 12, count: 28 }] }), mixBasis: "count", mix: [{ kind: "flooded", nominalVoltage: 12, count: 28 }] }, { at: new Date(now.getTime() - 7 * DAY) });

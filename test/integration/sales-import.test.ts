@@ -4,10 +4,9 @@ import path from "node:path";
 import { Readable } from "node:stream";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { testDb } from "../helpers/db";
-import { apiRequest, makeKey, makeOrgWithSite, makeSite } from "../helpers/factories";
+import { apiRequest, makeKey, makeOrgWithSite, makeSite, systemActor } from "../helpers/factories";
 import { writeSalesFile } from "../unit/deposits/generate-sales";
 import type { TDb } from "@/lib/db/client";
-import type { TActor } from "@/lib/auth/permissions";
 
 let db: TDb;
 let route: typeof import("@/app/api/v1/imports/sales/route");
@@ -190,19 +189,11 @@ describe("POST /api/v1/imports/sales", () => {
 });
 
 describe("importSales", () => {
-  const actorFor = (organisationId: string, siteId: string): TActor => ({
-    kind: "system",
-    id: "test",
-    ref: "system:test",
-    label: "Test",
-    organisationId,
-    roles: new Map([[siteId, "clerk"]]),
-  });
 
   test("an upload that arrives shorter than its Content-Length is refused and nothing is imported", async () => {
     const { organisation, site } = await clerkAt();
     const file = fixture("good.csv");
-    const result = await lib.importSales(actorFor(organisation.id, site.id), { siteId: site.id, stream: createReadStream(file), expectedBytes: statSync(file).size + 100 });
+    const result = await lib.importSales(systemActor(organisation.id, site.id), { siteId: site.id, stream: createReadStream(file), expectedBytes: statSync(file).size + 100 });
     expect(result).toMatchObject({ isImported: false, errorCount: 1 });
     expect(result.errors[0]).toMatchObject({ line: 0, field: "file", message: expect.stringContaining("cut short") });
     expect((await ledger(site.id)).sales).toBe(0);
@@ -211,7 +202,7 @@ describe("importSales", () => {
   test("lines split the deposit of a several-battery line so refunds add back to it", async () => {
     const { organisation, site } = await clerkAt();
     const text = "date,sale_id,product,group_size,quantity,deposit\n2025-03-01,T-1,Starter 12 V,24F,3,10.00\n";
-    const result = await lib.importSales(actorFor(organisation.id, site.id), { siteId: site.id, stream: Readable.from([Buffer.from(text)]) });
+    const result = await lib.importSales(systemActor(organisation.id, site.id), { siteId: site.id, stream: Readable.from([Buffer.from(text)]) });
     expect(result).toMatchObject({ newSales: 1, chargedCents: 1_000 });
     const entry = await db.depositEntry.findFirstOrThrow({ where: { siteId: site.id, saleRef: "T-1" } });
     expect(entry).toMatchObject({ kind: "charge", amountCents: 1_000, at: new Date("2025-03-01T12:00:00.000Z") });
@@ -223,7 +214,7 @@ describe("importSales", () => {
       const { organisation, site } = await clerkAt();
       const file = path.join(tmp, "sales-100k.csv");
       await writeSalesFile(file, 100_000);
-      const actor = actorFor(organisation.id, site.id);
+      const actor = systemActor(organisation.id, site.id);
       const progress: number[] = [];
       const first = await lib.importSales(actor, { siteId: site.id, stream: createReadStream(file), onProgress: (p) => progress.push(p.rows) });
       // generate-sales.ts: quantity 1 + (i mod 4), deposit $15 a battery → 25 000 × (1+2+3+4) × 1 500 cents
@@ -255,21 +246,13 @@ describe("the import route's own same-origin check", () => {
 });
 
 describe("the import's one transaction", () => {
-  const actorFor = (organisationId: string, siteId: string): TActor => ({
-    kind: "system",
-    id: "test",
-    ref: "system:test",
-    label: "Test",
-    organisationId,
-    roles: new Map([[siteId, "clerk"]]),
-  });
 
   test("a bad line after several stored batches rolls them all back, and the next import and intake go through", async () => {
     const { organisation, site } = await clerkAt();
     const file = path.join(tmp, `late-error-${site.id}.csv`);
     await writeSalesFile(file, 4_500); // batches of 1 000 lines are stored before the bad line is read
     await import("node:fs/promises").then((fs) => fs.appendFile(file, "2025-02-30,LATE-1,Starter 12 V,24F,1,15.00\n"));
-    const actor = actorFor(organisation.id, site.id);
+    const actor = systemActor(organisation.id, site.id);
     const bad = await lib.importSales(actor, { siteId: site.id, stream: createReadStream(file) });
     // Line 1 is the header, 4 500 sales lines follow, so the bad one is line 4 502; 2025-02-30 is not a date.
     expect(bad).toMatchObject({ isImported: false, rows: 4_500, errorCount: 1, errors: [{ line: 4_502, field: "date" }] });
@@ -287,7 +270,7 @@ describe("the import's one transaction", () => {
   test("a line with no deposit gets one credit a battery, with ids derived from the sale's", async () => {
     const { organisation, site } = await clerkAt();
     const text = "date,sale_id,product,group_size,quantity,deposit\n2025-03-01,C-1,Starter 12 V,24F,3,0.00\n2025-03-01,C-2,Starter 12 V,24F,2,$30\n";
-    const result = await lib.importSales(actorFor(organisation.id, site.id), { siteId: site.id, stream: Readable.from([Buffer.from(text)]) });
+    const result = await lib.importSales(systemActor(organisation.id, site.id), { siteId: site.id, stream: Readable.from([Buffer.from(text)]) });
     // 3 batteries handed in on C-1 (no deposit), 2 batteries for $30.00 on C-2
     expect(result).toMatchObject({ newSales: 2, chargeCount: 1, creditCount: 3, chargedCents: 3_000, balanceCents: 3_000 });
     const sale = await db.sale.findUniqueOrThrow({ where: { siteId_saleRef: { siteId: site.id, saleRef: "C-1" } } });
@@ -304,7 +287,7 @@ describe("the import's one transaction", () => {
     const { organisation, site, key } = await clerkAt();
     const file = path.join(tmp, `concurrent-${site.id}.csv`);
     await writeSalesFile(file, 20_000);
-    const actor = actorFor(organisation.id, site.id);
+    const actor = systemActor(organisation.id, site.id);
     const { recordIntake } = await import("@/lib/db/units");
     const { recordSale } = await import("@/lib/db/deposits");
     const { ZUnitIntake } = await import("@/lib/intake/schema");
