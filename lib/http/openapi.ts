@@ -184,7 +184,7 @@ OPERATIONS.push(
   {
     method: "post",
     path: "/api/v1/deposits/returns",
-    summary: "A used battery at the Counter against a sale: logs the unit and books the refund, credit or forfeit linked to it",
+    summary: "A used battery at the Counter against a sale: logs the unit and books the refund, credit or forfeit linked to it, in one transaction; a deposit entry the rule does not allow (window passed, sale already refunded) is a 400 and nothing is written",
     tag: "Deposits",
     body: { id: "CounterReturn", schema: ZCounterReturn },
     headers: { "Idempotency-Key": { schema: ZIdempotencyKey, description: "A retry with the same key returns the first response and writes nothing new" } },
