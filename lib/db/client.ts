@@ -8,6 +8,7 @@ import { PrismaClient as PostgresPrismaClient } from "./generated/postgres/clien
 import { type Prisma, PrismaClient as SqlitePrismaClient } from "./generated/sqlite/client";
 import { databaseProvider, DEFAULT_DATABASE_URL, pgConfig, sqliteFilePath } from "./migrate/database-url";
 import { sharedSqliteConnection, type TSqliteConnection } from "./sqlite-connection";
+import { startWalCheckpointer, type TWalCheckpointer } from "./wal-checkpointer";
 
 export { databaseProvider, type TDatabaseProvider } from "./migrate/database-url";
 
@@ -54,18 +55,29 @@ export async function sqliteConnection(client: TDb): Promise<TSqliteConnection |
   return connection();
 }
 
-type TDbCache = { url: string; client: TDb };
+type TDbCache = { url: string; client: TDb; checkpointer?: TWalCheckpointer };
 const cache = globalThis as typeof globalThis & { __leadgerDb?: TDbCache };
 
 /**
  * The process's one client on DATABASE_URL, kept on globalThis so that Next's dev reloads reuse it.
- * A changed DATABASE_URL (a test worker's own database) gets a new client.
+ * A changed DATABASE_URL (a test worker's own database) gets a new client. On SQLite it comes with the
+ * background WAL checkpointer (lib/db/wal-checkpointer.ts).
  */
 export function db(): TDb {
   const url = process.env.DATABASE_URL || DEFAULT_DATABASE_URL;
   if (cache.__leadgerDb?.url !== url) {
-    void cache.__leadgerDb?.client.$disconnect();
-    cache.__leadgerDb = { url, client: createDb(url) };
+    const old = cache.__leadgerDb;
+    void old?.checkpointer?.stop();
+    void old?.client.$disconnect();
+    const client = createDb(url);
+    cache.__leadgerDb = { url, client };
+    // LEADGER_WAL_CHECKPOINTER=0 leaves checkpoints to SQLite's own (on the commit that fills the log).
+    if (databaseProvider(url) === "sqlite" && process.env.LEADGER_WAL_CHECKPOINTER !== "0") {
+      cache.__leadgerDb.checkpointer = startWalCheckpointer({
+        file: sqliteFilePath(url),
+        setAutocheckpoint: (pages) => void sqliteConnection(client).then((c) => c?.database.pragma(`wal_autocheckpoint = ${pages}`)),
+      });
+    }
   }
   return cache.__leadgerDb.client;
 }
