@@ -15,11 +15,11 @@ process.setSourceMapsEnabled(false);
 
 export async function serve({ port = Number(process.env.PORT ?? 3000), hostname = process.env.HOST ?? "127.0.0.1" } = {}) {
   process.env.NEXT_TELEMETRY_DISABLED = "1";
+  const stamp = clientIpHeader(); // named before Next loads the app, which reads the same name
   const app = next({ dev: false, dir: path.resolve(import.meta.dirname, ".."), hostname, port });
   const handle = app.getRequestHandler();
   await app.prepare();
   const trusted = trustedProxies();
-  const stamp = clientIpHeader(); // named before Next loads the app, which reads the same name
   const server = createServer((req, res) => {
     const forwarded = req.headers["x-forwarded-for"];
     req.headers[stamp] = clientAddress({

@@ -12,7 +12,7 @@ export const RAW_UNIT_INSERT = `INSERT INTO "Unit" ("id","siteId","kind","nomina
 export const RAW_TOTALS_UPDATE = `UPDATE "Site" SET "unitCount" = "unitCount" + 1, "batteryKg" = "batteryKg" + 18, "leadKg" = "leadKg" + 11.5,
  "electrolyteKg" = "electrolyteKg" + 4.3, "acidKg" = "acidKg" + 1.6 WHERE "id" = ?`;
 
-export { toPg } from "@/lib/db/fast-intake";
+export { toPg } from "@/lib/db/raw";
 
 /**
  * On PostgreSQL the floor does both in one statement (one round trip, its own transaction), as the real intake

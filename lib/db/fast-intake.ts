@@ -65,8 +65,6 @@ const SQL = {
   idempotency: `INSERT INTO "IdempotencyKey" ("id", "scope", "key", "status", "body", "createdAt") VALUES (${marks(6)})`,
 };
 
-export { toPg };
-
 /** Timestamps exactly as Prisma writes them, so Prisma's range filters see raw rows the same way. */
 export const sqliteTime = (d: Date) => d.toISOString().replace("Z", "+00:00");
 export const pgTime = (d: Date) => d.toISOString().replace("Z", ""); // timestamp(3) without time zone, in UTC
@@ -109,9 +107,8 @@ async function sqliteIntake(client: TDb, input: TFastIntake): Promise<{ siteTota
   const database = connection.database;
   const statement = (name: keyof typeof SQL) => prepared(database, SQL[name]);
   const args = sideArgs(input, sqliteTime);
-  const release = await connection.lock.acquire();
   try {
-    return database.transaction(() => {
+    return await connection.lock.run(database.transaction(() => {
       statement("unit").run(...unitArgs(input.unit, sqliteTime));
       statement("level").run(...args.level);
       statement("trail").run(...args.trail);
@@ -120,12 +117,10 @@ async function sqliteIntake(client: TDb, input: TFastIntake): Promise<{ siteTota
       const body = withTotals(input.body, siteTotals);
       if (input.idempotency) statement("idempotency").run(...args.idempotency(body));
       return { siteTotals, body };
-    })();
+    }));
   } catch (error) {
     if ((error as { code?: string }).code === "SQLITE_CONSTRAINT_UNIQUE") throw duplicateKey();
     throw error;
-  } finally {
-    release();
   }
 }
 

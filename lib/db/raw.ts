@@ -67,10 +67,5 @@ export async function rawRow<T>(client: TDb, sql: string, args: unknown[]): Prom
     return rows[0] as T | undefined;
   }
   const connection = (await sqliteConnection(client))!;
-  const release = await connection.lock.acquire();
-  try {
-    return prepared(connection.database, sql).get(...args) as T | undefined;
-  } finally {
-    release();
-  }
+  return connection.lock.run(() => prepared(connection.database, sql).get(...args) as T | undefined);
 }

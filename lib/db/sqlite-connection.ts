@@ -18,6 +18,16 @@ export class ConnectionLock {
     this.#tail = this.#tail.then(() => next);
     return ready;
   }
+
+  /** Runs `fn` holding the lock, and releases it however `fn` ends. */
+  async run<T>(fn: () => T | Promise<T>): Promise<T> {
+    const release = await this.acquire();
+    try {
+      return await fn();
+    } finally {
+      release();
+    }
+  }
 }
 
 export type TSqliteConnection = { database: Database.Database; lock: ConnectionLock };
@@ -33,14 +43,6 @@ export function sharedSqliteConnection(
   let opened: Promise<TSqliteConnection> | undefined;
   let resolveOpened!: (c: TSqliteConnection) => void;
   const waiting = new Promise<TSqliteConnection>((resolve) => (resolveOpened = resolve));
-  const locked = async <T>(fn: () => Promise<T>): Promise<T> => {
-    const release = await lock.acquire();
-    try {
-      return await fn();
-    } finally {
-      release();
-    }
-  };
   const wrapped: SqlDriverAdapterFactory = {
     provider: factory.provider,
     adapterName: factory.adapterName,
@@ -54,8 +56,8 @@ export function sharedSqliteConnection(
         // A query outside a transaction waits for the lock too: on the one connection it would otherwise run inside
         // whichever transaction is open (an import, an interactive Prisma transaction between two of its awaits),
         // read its uncommitted rows, and vanish with it on a rollback.
-        queryRaw: (q) => locked(() => inner.queryRaw(q)),
-        executeRaw: (q) => locked(() => inner.executeRaw(q)),
+        queryRaw: (q) => lock.run(() => inner.queryRaw(q)),
+        executeRaw: (q) => lock.run(() => inner.executeRaw(q)),
         executeScript: (s) => inner.executeScript(s),
         dispose: () => inner.dispose(),
         ...(inner.getConnectionInfo ? { getConnectionInfo: () => inner.getConnectionInfo!() } : {}),

@@ -154,11 +154,9 @@ export function CounterForm(props: {
     setCondition("intact");
     setMessage({ text: `Saved: ${props.kinds.find((k) => k.id === unit.kind)?.label ?? unit.kind}, ${unit.nominalVoltage} V.`, isError: false });
     if (result.deposit) {
-      const deposit = result.deposit as { isBooked: boolean; message: string; balanceCents?: number };
-      setDepositResult({
-        text: deposit.isBooked && deposit.balanceCents !== undefined ? `${deposit.message} Deposits held now: ${dollars(deposit.balanceCents)}.` : deposit.message,
-        isBooked: deposit.isBooked,
-      });
+      // A return answers 201 only with its deposit booked; a refusal is a 400 above, with nothing written.
+      const deposit = result.deposit as { message: string; balanceCents: number };
+      setDepositResult({ text: `${deposit.message} Deposits held now: ${dollars(deposit.balanceCents)}.`, isBooked: true });
     } else if (depositCheck?.status === "missing" && depositCheck.saleRef === body.saleRef) {
       setDepositResult({ text: `No sale ${body.saleRef} at this store: the unit is logged with the reference, without a deposit entry.`, isBooked: false });
     }
