@@ -1,12 +1,14 @@
 import { randomUUID } from "node:crypto";
 import { databaseProvider } from "./migrate/database-url";
 import { sqliteConnection, type TDb } from "./client";
+import type { TSqliteConnection } from "./sqlite-connection";
 import { databaseUrl, pgPool, prepared, toPg } from "./raw";
 import { pickTotals, type TTotals } from "./totals";
 
 /**
  * The intake hot path in plain SQL: insert the unit, append the level change and the trail event, move the
- * site's totals, store the idempotency record — one transaction, a handful of prepared statements. Prisma's query layer
+ * site's totals, store the idempotency record — one transaction (on SQLite, one savepoint in a group commit), a
+ * handful of prepared statements. Prisma's query layer
  * costs a few tenths of a millisecond per statement, which at five writes per intake was most of the request
  * (measured: test/bench/intake.bench.ts); everything else still goes through Prisma. SQLite and PostgreSQL
  * twins of each statement are kept side by side, and the integration suite runs on both.
@@ -102,26 +104,73 @@ function sideArgs(input: TFastIntake, time: (d: Date) => string) {
   };
 }
 
-async function sqliteIntake(client: TDb, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
+type TIntakeDone = { siteTotals: TTotals; body: object };
+type TQueued = { input: TFastIntake; resolve: (done: TIntakeDone) => void; reject: (error: unknown) => void };
+
+/** Intakes waiting for the next group commit, per connection. */
+const waiting = new WeakMap<object, TQueued[]>();
+
+/**
+ * On SQLite the intakes that arrive within one turn of the event loop share one commit (a group commit). Each
+ * intake runs in its own savepoint inside the shared transaction, so it still stands or falls on its own: a
+ * failing one (a used idempotency key) is rolled back alone and the rest commit. Nobody gets an answer before
+ * the commit that holds their unit. The commit — writing the log frames — costs more than the five statements
+ * together, and intakes that arrive together mostly touch the same pages (measured: test/bench/intake.bench.ts).
+ */
+async function sqliteIntake(client: TDb, input: TFastIntake): Promise<TIntakeDone> {
   const connection = (await sqliteConnection(client))!;
+  return new Promise((resolve, reject) => {
+    let queue = waiting.get(connection);
+    if (!queue) {
+      queue = [];
+      waiting.set(connection, queue);
+      setImmediate(() => void commitGroup(connection, queue!));
+    }
+    queue.push({ input, resolve, reject });
+  });
+}
+
+async function commitGroup(connection: TSqliteConnection, group: TQueued[]): Promise<void> {
+  waiting.delete(connection); // whoever comes while this group waits for the lock starts the next one
   const database = connection.database;
   const statement = (name: keyof typeof SQL) => prepared(database, SQL[name]);
-  const args = sideArgs(input, sqliteTime);
+  // A transaction function called inside a transaction runs as a savepoint (better-sqlite3).
+  const one = database.transaction((input: TFastIntake): TIntakeDone => {
+    const args = sideArgs(input, sqliteTime);
+    statement("unit").run(...unitArgs(input.unit, sqliteTime));
+    statement("level").run(...args.level);
+    statement("trail").run(...args.trail);
+    const siteTotals = statement("site").get(...args.site) as TTotals | undefined;
+    if (!siteTotals) throw new Error(`site ${input.unit.siteId} vanished during intake`);
+    const body = withTotals(input.body, siteTotals);
+    if (input.idempotency) statement("idempotency").run(...args.idempotency(body));
+    return { siteTotals, body };
+  });
+  let outcomes: ({ done: TIntakeDone } | { error: unknown })[];
   try {
-    return await connection.lock.run(database.transaction(() => {
-      statement("unit").run(...unitArgs(input.unit, sqliteTime));
-      statement("level").run(...args.level);
-      statement("trail").run(...args.trail);
-      const siteTotals = statement("site").get(...args.site) as TTotals | undefined;
-      if (!siteTotals) throw new Error(`site ${input.unit.siteId} vanished during intake`);
-      const body = withTotals(input.body, siteTotals);
-      if (input.idempotency) statement("idempotency").run(...args.idempotency(body));
-      return { siteTotals, body };
-    }));
+    outcomes = await connection.lock.run(
+      database.transaction(() =>
+        group.map(({ input }) => {
+          try {
+            return { done: one(input) };
+          } catch (error) {
+            // Some errors (a full disk, an I/O error) make SQLite roll back the whole transaction: then none of
+            // the group may go on outside it.
+            if (!database.inTransaction) throw error;
+            return { error };
+          }
+        }),
+      ),
+    );
   } catch (error) {
-    if ((error as { code?: string }).code === "SQLITE_CONSTRAINT_UNIQUE") throw duplicateKey();
-    throw error;
+    for (const queued of group) queued.reject(error); // the commit itself failed: nothing of the group is stored
+    return;
   }
+  group.forEach((queued, i) => {
+    const outcome = outcomes[i]!;
+    if ("done" in outcome) queued.resolve(outcome.done);
+    else queued.reject((outcome.error as { code?: string }).code === "SQLITE_CONSTRAINT_UNIQUE" ? duplicateKey() : outcome.error);
+  });
 }
 
 /**
@@ -139,7 +188,7 @@ const pgIntakeSql = (withKey: boolean) =>
   } SELECT "unitCount", "batteryKg", "leadKg", "electrolyteKg", "acidKg" FROM "s"`);
 const PG_INTAKE = { withKey: pgIntakeSql(true), withoutKey: pgIntakeSql(false) };
 
-async function postgresIntake(url: string, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
+async function postgresIntake(url: string, input: TFastIntake): Promise<TIntakeDone> {
   const args = sideArgs(input, pgTime);
   const values = [...unitArgs(input.unit, pgTime), ...args.level, ...args.trail, ...args.site, ...(input.idempotency ? args.idempotencyHead() : [])];
   // Named, so each pooled connection parses and plans it once.
@@ -155,7 +204,7 @@ async function postgresIntake(url: string, input: TFastIntake): Promise<{ siteTo
 }
 
 /** Runs one intake on the process's database (db()'s URL). */
-export function fastIntake(client: TDb, input: TFastIntake): Promise<{ siteTotals: TTotals; body: object }> {
+export function fastIntake(client: TDb, input: TFastIntake): Promise<TIntakeDone> {
   const url = databaseUrl();
   return databaseProvider(url) === "postgresql" ? postgresIntake(url, input) : sqliteIntake(client, input);
 }

@@ -5,7 +5,7 @@
  * DATABASE_URL=postgresql://… runs it on PostgreSQL (the database is reset).
  */
 import { spawn } from "node:child_process";
-import { mkdtempSync, rmSync } from "node:fs";
+import { createWriteStream, mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { randomUUID } from "node:crypto";
@@ -123,7 +123,10 @@ function startServer() {
     stdio: ["ignore", "pipe", "inherit"],
   });
   return new Promise<typeof child>((resolve, reject) => {
+    // BENCH_SERVER_LOG=file keeps the server's output (with --trace-gc in BENCH_NODE_ARGS, its collections).
+    const log = process.env.BENCH_SERVER_LOG ? createWriteStream(process.env.BENCH_SERVER_LOG) : null;
     child.stdout.on("data", (chunk: Buffer) => {
+      log?.write(chunk);
       if (chunk.toString().includes("listening")) resolve(child);
     });
     child.on("exit", (code) => reject(new Error(`server exited with ${code}`)));
@@ -161,6 +164,7 @@ try {
   const intakeRounds: TResult[] = [];
   for (let round = 0; round < ROUNDS; round++) {
     bareRounds.push(await cannon({ url: `${base}/api/v1/bench-floor?site=${floorSiteId}`, method: "POST" }));
+    const intakeStart = process.hrtime.bigint() / 1000n; // µs, the clock of the server's --cpu-prof samples
     intakeRounds.push(
       await cannon({
         url: `${base}/api/v1/units`,
@@ -169,6 +173,7 @@ try {
         requests: [{ setupRequest: (req) => ({ ...req, body, headers: { ...req.headers, "idempotency-key": randomUUID() } }) }],
       }),
     );
+    if (process.env.BENCH_NODE_ARGS) console.log(`intake round ${round + 1}: monotonic µs ${intakeStart}–${process.hrtime.bigint() / 1000n}`);
   }
   const bare = median(bareRounds);
   const intake = median(intakeRounds);
