@@ -15,6 +15,7 @@ import pg from "pg";
 import { buildIfNeeded } from "../../scripts/build-if-needed";
 import { databaseProvider, pgConfig, sqliteFilePath } from "../../lib/db/migrate/database-url";
 import { applyMigrations, resetDatabase } from "../../lib/db/migrate/migrations";
+import { createDatabase, listDatabases, withDatabase } from "../../lib/db/migrate/postgres-server";
 import { RAW_INTAKE_ONE_STATEMENT, RAW_TOTALS_UPDATE, RAW_UNIT_INSERT, rawUnitArgs, toPg } from "../../lib/bench/raw-intake";
 import { pgTime, sqliteTime } from "../../lib/db/fast-intake";
 import { newApiKey } from "../../lib/auth/api-keys";
@@ -62,7 +63,13 @@ async function openSql(): Promise<TSql> {
 }
 
 async function seed() {
-  if (provider === "postgresql") await resetDatabase({ provider, url });
+  if (provider === "postgresql") {
+    // The database is the benchmark's own: created when missing, emptied when there.
+    const name = decodeURIComponent(new URL(url).pathname.slice(1));
+    const server = withDatabase(url, "postgres");
+    if (!(await listDatabases({ url: server, prefix: name })).includes(name)) await createDatabase({ url: server, name });
+    await resetDatabase({ provider, url });
+  }
   else await applyMigrations({ provider, url });
   const sql = await openSql();
   const orgId = randomUUID();
