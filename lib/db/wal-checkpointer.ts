@@ -7,7 +7,7 @@ import { Worker } from "node:worker_threads";
  * pages copies it into the database file and syncs that file, on the thread that serves requests — every request
  * in flight waits for the disk. Here a worker thread with its own connection runs a PASSIVE checkpoint (it never
  * blocks a writer or a reader) every `intervalMs`, and the app's connection stops checkpointing itself once the
- * worker is up; if the worker stops, the app's connection checkpoints itself again. Measured with
+ * worker is up; if the worker stops or a checkpoint fails, the app's connection checkpoints itself again. Measured with
  * `npm run bench:intake`, interleaved runs: intake p99 58–65 → 51–53 ms, 399–404 → 431–451 req/s.
  */
 
@@ -55,6 +55,14 @@ export function startWalCheckpointer({
   worker.on("message", (message: { ready?: true; log?: number; checkpointed?: number; error?: string }) => {
     if (message.ready) setAutocheckpoint(0);
     else if (message.log !== undefined) onCheckpoint?.({ log: message.log, checkpointed: message.checkpointed! });
+    else if (message.error !== undefined) {
+      // A checkpoint that fails (an I/O error, a file that is not a database) would let the log grow without end:
+      // the app's connection checkpoints itself again, and the worker stops.
+      console.error(`WAL checkpointer stopped; SQLite checkpoints on commit again: ${message.error}`);
+      fallBack();
+      isStopping = true;
+      void worker.terminate();
+    }
   });
   const fallBack = () => {
     if (!isStopping) setAutocheckpoint(1000);

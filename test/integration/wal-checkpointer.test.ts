@@ -2,7 +2,7 @@
 // app's connection stops checkpointing itself, the worker copies the whole log into the database file, and when it
 // stops the connection's own checkpoints come back. (SQLite's WAL and checkpoint semantics: sqlite.org/wal.html,
 // common practice — not a REFERENCES.md value.)
-import { mkdtempSync, rmSync } from "node:fs";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import Database from "better-sqlite3";
@@ -46,4 +46,24 @@ test("checkpoints the log from its own thread, and hands checkpointing back when
   const reader = new Database(file, { readonly: true });
   expect(reader.prepare(`SELECT count(*) AS "n" FROM "t"`).get()).toEqual({ n: 5000 });
   reader.close();
+});
+
+test("a checkpoint that fails hands checkpointing back to the app's connection and stops the worker", async () => {
+  // Not a database at all: SQLite refuses every checkpoint on it ("file is not a database").
+  const file = path.join(dir, "not-a-database.db");
+  writeFileSync(file, "this is not an SQLite file ".repeat(200));
+  const settings: number[] = [];
+  const errors: unknown[] = [];
+  const original = console.error;
+  console.error = (...args: unknown[]) => void errors.push(args.join(" "));
+  try {
+    const checkpointer = startWalCheckpointer({ file, intervalMs: 20, setAutocheckpoint: (pages) => void settings.push(pages) });
+    await expect.poll(() => settings.at(-1), { timeout: 5000 }).toBe(1000);
+    expect(String(errors[0])).toMatch(/WAL checkpointer stopped.*not a database/);
+    await new Promise((resolve) => setTimeout(resolve, 200));
+    expect(settings.filter((p) => p === 1000)).toHaveLength(1); // handed back once, and the worker is gone
+    await checkpointer.stop();
+  } finally {
+    console.error = original;
+  }
 });
