@@ -108,7 +108,7 @@ type TIntakeDone = { siteTotals: TTotals; body: object };
 type TQueued = { input: TFastIntake; resolve: (done: TIntakeDone) => void; reject: (error: unknown) => void };
 
 /** Intakes waiting for the next group commit, per connection. */
-const waiting = new WeakMap<object, TQueued[]>();
+const waiting = new WeakMap<TSqliteConnection, TQueued[]>();
 
 /**
  * On SQLite the intakes that arrive within one turn of the event loop share one commit (a group commit). Each
@@ -122,16 +122,19 @@ async function sqliteIntake(client: TDb, input: TFastIntake): Promise<TIntakeDon
   return new Promise((resolve, reject) => {
     let queue = waiting.get(connection);
     if (!queue) {
-      queue = [];
-      waiting.set(connection, queue);
-      setImmediate(() => void commitGroup(connection, queue!));
+      const group: TQueued[] = (queue = []);
+      waiting.set(connection, group);
+      setImmediate(() => {
+        waiting.delete(connection); // whoever comes while this group waits for the lock starts the next one
+        // commitGroup settles every intake itself; this only catches what it could not foresee.
+        commitGroup(connection, group).catch((error: unknown) => group.forEach((queued) => queued.reject(error)));
+      });
     }
     queue.push({ input, resolve, reject });
   });
 }
 
 async function commitGroup(connection: TSqliteConnection, group: TQueued[]): Promise<void> {
-  waiting.delete(connection); // whoever comes while this group waits for the lock starts the next one
   const database = connection.database;
   const statement = (name: keyof typeof SQL) => prepared(database, SQL[name]);
   // A transaction function called inside a transaction runs as a savepoint (better-sqlite3).
