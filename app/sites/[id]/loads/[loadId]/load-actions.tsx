@@ -2,10 +2,26 @@
 
 import { useEffect, useState } from "react";
 import { formatMass, lbToKg, type TUnitSystem } from "@/lib/units";
-import { ErrorBox, useApi } from "../api-client";
+import { ErrorBox, useApi, type TApiError } from "../api-client";
 import styles from "../loads.module.css";
 
 type TOption = { id: string; label: string };
+/** A form's last row: its submit button, then the last attempt's error across the form's width. */
+function SubmitRow({ label, busy, error, isPrimary = false }: { label: string; busy: boolean; error: TApiError | null; isPrimary?: boolean }) {
+  return (
+    <>
+      <div>
+        <button type="submit" className={isPrimary ? "primary" : undefined} disabled={busy}>
+          {label}
+        </button>
+      </div>
+      <div className={styles.wide}>
+        <ErrorBox error={error} />
+      </div>
+    </>
+  );
+}
+
 const toKg = (value: string, system: TUnitSystem) => (value.trim() === "" ? undefined : system === "lb" ? lbToKg(Number(value)) : Number(value));
 
 /** Ticks sealed containers of the site and puts them on the load in one request. */
@@ -96,14 +112,7 @@ export function LoadDetailsForm({ loadId, facilityId, carrierId, vehicle, facili
         <label htmlFor="vehicle">Vehicle</label>
         <input id="vehicle" name="vehicle" defaultValue={vehicle} autoComplete="off" />
       </div>
-      <div>
-        <button type="submit" disabled={busy}>
-          Save details
-        </button>
-      </div>
-      <div className={styles.wide}>
-        <ErrorBox error={error} />
-      </div>
+      <SubmitRow label="Save details" busy={busy} error={error} />
     </form>
   );
 }
@@ -229,14 +238,7 @@ export function DepartForm({ loadId, system }: { loadId: string; system: TUnitSy
         <label htmlFor="departedAt">Departed at</label>
         <input id="departedAt" name="departedAt" type="datetime-local" value={when} onChange={(e) => setWhen(e.target.value)} aria-invalid={issueFor("departedAt") ? true : undefined} />
       </div>
-      <div>
-        <button type="submit" className="primary" disabled={busy}>
-          Mark departed
-        </button>
-      </div>
-      <div className={styles.wide}>
-        <ErrorBox error={error} />
-      </div>
+      <SubmitRow label="Mark departed" busy={busy} error={error} isPrimary />
     </form>
   );
 }
@@ -264,14 +266,7 @@ export function ReceiveForm({ loadId, system }: { loadId: string; system: TUnitS
         <label htmlFor="receivedAt">Date received</label>
         <input id="receivedAt" name="receivedAt" type="date" value={day} onChange={(e) => setDay(e.target.value)} required aria-invalid={issueFor("receivedAt") ? true : undefined} />
       </div>
-      <div>
-        <button type="submit" className="primary" disabled={busy}>
-          Record receipt
-        </button>
-      </div>
-      <div className={styles.wide}>
-        <ErrorBox error={error} />
-      </div>
+      <SubmitRow label="Record receipt" busy={busy} error={error} isPrimary />
     </form>
   );
 }
@@ -293,14 +288,7 @@ export function ReconcileForm({ loadId, isFlagged }: { loadId: string; isFlagged
         </label>
         <input id="reconcile-note" name="note" autoComplete="off" />
       </div>
-      <div>
-        <button type="submit" className="primary" disabled={busy}>
-          Reconcile
-        </button>
-      </div>
-      <div className={styles.wide}>
-        <ErrorBox error={error} />
-      </div>
+      <SubmitRow label="Reconcile" busy={busy} error={error} isPrimary />
     </form>
   );
 }
@@ -339,14 +327,7 @@ export function CorrectionForm({ loadId, fields, system }: { loadId: string; fie
         <label htmlFor="correction-note">Why</label>
         <input id="correction-note" name="note" autoComplete="off" />
       </div>
-      <div>
-        <button type="submit" disabled={busy}>
-          Record correction
-        </button>
-      </div>
-      <div className={styles.wide}>
-        <ErrorBox error={error} />
-      </div>
+      <SubmitRow label="Record correction" busy={busy} error={error} />
     </form>
   );
 }
