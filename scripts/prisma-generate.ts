@@ -48,9 +48,8 @@ export function areClientsCurrent(): boolean {
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
-  if (process.argv.includes("--if-stale") && isPostgresSchemaCurrent() && areClientsCurrent()) {
-    // nothing to do
-  } else if (process.argv.includes("--check")) {
+  if (process.argv.includes("--if-stale") && isPostgresSchemaCurrent() && areClientsCurrent()) process.exit(0);
+  if (process.argv.includes("--check")) {
     if (!isPostgresSchemaCurrent()) {
       console.error("prisma/postgres/schema.prisma is stale: run `npm run db:generate` and commit it.");
       process.exit(1);

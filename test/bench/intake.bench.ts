@@ -65,7 +65,7 @@ async function openSql(): Promise<TSql> {
 async function seed() {
   if (provider === "postgresql") {
     // The database is the benchmark's own: created when missing, emptied when there.
-    const name = decodeURIComponent(new URL(url).pathname.slice(1));
+    const name = pgConfig(url).database!;
     const server = withDatabase(url, "postgres");
     if (!(await listDatabases({ url: server, prefix: name })).includes(name)) await createDatabase({ url: server, name });
     await resetDatabase({ provider, url });

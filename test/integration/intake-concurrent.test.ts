@@ -8,7 +8,6 @@ import { testDb } from "../helpers/db";
 import { apiRequest, makeKey, makeOrgWithSite } from "../helpers/factories";
 import type { TDb } from "@/lib/db/client";
 import { fastIntake, type TUnitRow } from "@/lib/db/fast-intake";
-import { db as appDb } from "@/lib/db/client";
 
 let db: TDb;
 let units: typeof import("@/app/api/v1/units/route");
@@ -93,7 +92,7 @@ describe("intakes sent at the same moment", () => {
 
   test("one intake that fails in the database fails alone; the others sent with it are stored", async () => {
     const { organisation, site } = await siteWithKey();
-    const intake = (siteId: string) => fastIntake(appDb(), rawIntake(organisation.id, row(siteId)));
+    const intake = (siteId: string) => fastIntake(db, rawIntake(organisation.id, row(siteId)));
     // A site that is not there (deleted between the check and the write): the unit's foreign key refuses it.
     const outcomes = await Promise.allSettled([intake(site.id), intake(randomUUID()), intake(site.id)]);
     expect(outcomes.map((o) => o.status)).toEqual(["fulfilled", "rejected", "fulfilled"]);
@@ -108,11 +107,11 @@ describe("intakes sent at the same moment", () => {
     const key = randomUUID();
     // Sent in the same turn of the event loop: on SQLite one group commit; on PostgreSQL five statements at once.
     const outcomes = await Promise.allSettled([
-      fastIntake(appDb(), rawIntake(organisation.id, row(site.id))),
-      fastIntake(appDb(), rawIntake(organisation.id, row(site.id), key)),
-      fastIntake(appDb(), rawIntake(organisation.id, row(site.id))),
-      fastIntake(appDb(), rawIntake(organisation.id, row(site.id), key)),
-      fastIntake(appDb(), rawIntake(organisation.id, row(site.id))),
+      fastIntake(db, rawIntake(organisation.id, row(site.id))),
+      fastIntake(db, rawIntake(organisation.id, row(site.id), key)),
+      fastIntake(db, rawIntake(organisation.id, row(site.id))),
+      fastIntake(db, rawIntake(organisation.id, row(site.id), key)),
+      fastIntake(db, rawIntake(organisation.id, row(site.id))),
     ]);
     // One of the two with the key is refused (on SQLite the later one; on PostgreSQL whichever commits second).
     const refused = outcomes.flatMap((o, i) => (o.status === "rejected" ? [i] : []));
@@ -135,7 +134,7 @@ describe("intakes sent at the same moment", () => {
   test("intakes handed over in one turn with nothing wrong are all stored, each with the totals after its own unit", async () => {
     const { organisation, site } = await siteWithKey();
     const keys = [randomUUID(), randomUUID(), randomUUID()];
-    const done = await Promise.all(keys.map((k) => fastIntake(appDb(), rawIntake(organisation.id, row(site.id), k))));
+    const done = await Promise.all(keys.map((k) => fastIntake(db, rawIntake(organisation.id, row(site.id), k))));
     // Each saw the ones written before it: counts 1, 2, 3 and 18, 36, 54 kg, in some order.
     expect(done.map((d) => [d.siteTotals.unitCount, d.siteTotals.batteryKg]).sort((x, y) => x[0]! - y[0]!)).toEqual(
       [1, 2, 3].map((n) => [n, expect.closeTo(18 * n, 9)]),

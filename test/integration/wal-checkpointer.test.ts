@@ -6,7 +6,7 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import Database from "better-sqlite3";
-import { afterAll, expect, test } from "vitest";
+import { afterAll, expect, test, vi } from "vitest";
 import { startWalCheckpointer, type TCheckpoint } from "@/lib/db/wal-checkpointer";
 
 const dir = mkdtempSync(path.join(os.tmpdir(), "leadger-wal-"));
@@ -53,17 +53,15 @@ test("a checkpoint that fails hands checkpointing back to the app's connection a
   const file = path.join(dir, "not-a-database.db");
   writeFileSync(file, "this is not an SQLite file ".repeat(200));
   const settings: number[] = [];
-  const errors: unknown[] = [];
-  const original = console.error;
-  console.error = (...args: unknown[]) => void errors.push(args.join(" "));
+  const errors = vi.spyOn(console, "error").mockImplementation(() => {});
   try {
     const checkpointer = startWalCheckpointer({ file, intervalMs: 20, setAutocheckpoint: (pages) => void settings.push(pages) });
     await expect.poll(() => settings.at(-1), { timeout: 5000 }).toBe(1000);
-    expect(String(errors[0])).toMatch(/WAL checkpointer stopped.*not a database/);
+    expect(String(errors.mock.calls[0]?.[0])).toMatch(/WAL checkpointer stopped.*not a database/);
     await new Promise((resolve) => setTimeout(resolve, 200));
     expect(settings.filter((p) => p === 1000)).toHaveLength(1); // handed back once, and the worker is gone
     await checkpointer.stop();
   } finally {
-    console.error = original;
+    errors.mockRestore();
   }
 });
